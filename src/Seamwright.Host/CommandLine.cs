@@ -1,0 +1,40 @@
+namespace Seamwright.Host;
+
+/// <summary>Dispatches the first argument to a command. Each command lives in Commands/.</summary>
+internal static class CommandLine
+{
+    public static int Run(string[] args)
+    {
+        if (args.Length == 0 || args[0] is "-h" or "--help" or "help")
+        {
+            Console.Out.WriteLine(Usage);
+            return args.Length == 0 ? ExitCodes.BadArguments : ExitCodes.Ok;
+        }
+        var rest = args[1..];
+        return args[0] switch
+        {
+            "version" or "--version" => Version(),
+            _ => Unknown(args[0]),
+        };
+    }
+
+    private const string Usage =
+        """
+        seamwright: prepares overlapping images for stitching.
+
+        Commands:
+          version                     print the tool and algorithm versions
+        """;
+
+    private static int Version()
+    {
+        Console.Out.WriteLine(typeof(CommandLine).Assembly.GetName().Version?.ToString(3));
+        return ExitCodes.Ok;
+    }
+
+    private static int Unknown(string command)
+    {
+        Console.Error.WriteLine($"seamwright: unknown command '{command}' (try 'seamwright help')");
+        return ExitCodes.BadArguments;
+    }
+}
