@@ -58,6 +58,23 @@ public static class OrientedCornerExtractor
         return new FeatureSet([.. keypoints], [.. descriptors]);
     }
 
+    /// <summary>
+    /// The working copy: the image shrunk by area averaging to at most maxPixels (a copy when it
+    /// already fits). Per-axis factor full / working is Width / working.Width.
+    /// </summary>
+    public static GrayImage ShrinkToBudget(GrayImage image, long maxPixels)
+    {
+        ArgumentNullException.ThrowIfNull(image);
+        long pixels = (long)image.Width * image.Height;
+        if (pixels <= maxPixels)
+        {
+            return image;
+        }
+        double s = Math.Sqrt((double)pixels / maxPixels);
+        int w = Math.Max(1, (int)Math.Floor(image.Width / s)), h = Math.Max(1, (int)Math.Floor(image.Height / s));
+        return AreaResampler.Downscale(image, w, h);
+    }
+
     /// <summary>Budget per level in proportion to the level's area (geometric in 1 / ScaleFactor^2).</summary>
     internal static int[] LevelBudgets(CornerDetectorOptions options)
     {
