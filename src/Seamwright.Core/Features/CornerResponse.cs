@@ -1,4 +1,7 @@
 using System.Buffers;
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 
 namespace Seamwright.Core.Features;
 
@@ -8,7 +11,8 @@ namespace Seamwright.Core.Features;
 /// (Shi, Tomasi, CVPR 1994). Gradients are 3x3 Sobel, the tensor is summed over a
 /// blockSize x blockSize window, borders reflect without repeating the edge pixel, and
 /// gradients are scaled by 1 / (4 * blockSize * 255) so responses are comparable across
-/// block sizes and with common library conventions.
+/// block sizes and with common library conventions. Streams row by row: horizontal window sums
+/// are kept for the last blockSize rows only.
 /// </summary>
 public static class CornerResponse
 {
@@ -29,145 +33,155 @@ public static class CornerResponse
         {
             throw new ArgumentException("The image must be at least 2 x 2.");
         }
-        if (blockSize < 1 || blockSize % 2 == 0)
+        if (blockSize < 1 || blockSize % 2 == 0 || blockSize / 2 >= Math.Min(width, height))
         {
-            throw new ArgumentOutOfRangeException(nameof(blockSize), "The block size must be odd and positive.");
+            throw new ArgumentOutOfRangeException(nameof(blockSize), "The block size must be odd, positive and smaller than the image.");
         }
         int n = width * height;
         if ((!harris.IsEmpty && harris.Length < n) || (!minEigen.IsEmpty && minEigen.Length < n))
         {
             throw new ArgumentException("Output buffers are too small.");
         }
-        float[] xx = ArrayPool<float>.Shared.Rent(n);
-        float[] xy = ArrayPool<float>.Shared.Rent(n);
-        float[] yy = ArrayPool<float>.Shared.Rent(n);
+        int r = blockSize / 2;
+        int w = width;
+        // Ring of horizontally summed rows: slot s holds source row ringRow[s], three channels.
+        float[] ring = ArrayPool<float>.Shared.Rent(3 * blockSize * w);
+        float[] products = ArrayPool<float>.Shared.Rent(3 * (w + 2 * r));
+        float[] sums = ArrayPool<float>.Shared.Rent(3 * w);
+        var ringRow = new int[blockSize];
+        Array.Fill(ringRow, -1);
+        float scale = (float)GradientScale(blockSize);
+        float k = (float)harrisK;
         try
         {
-            GradientProducts(pixels, width, height, (float)GradientScale(blockSize), xx, xy, yy);
-            int r = blockSize / 2;
-            BoxSum(xx.AsSpan(0, n), width, height, r);
-            BoxSum(xy.AsSpan(0, n), width, height, r);
-            BoxSum(yy.AsSpan(0, n), width, height, r);
-            float k = (float)harrisK;
-            for (int i = 0; i < n; i++)
+            for (int y = 0; y < height; y++)
             {
-                float a = xx[i], b = xy[i], c = yy[i];
-                if (!harris.IsEmpty)
+                var xx = sums.AsSpan(0, w);
+                var xy = sums.AsSpan(w, w);
+                var yy = sums.AsSpan(2 * w, w);
+                xx.Clear();
+                xy.Clear();
+                yy.Clear();
+                for (int dy = -r; dy <= r; dy++)
                 {
-                    harris[i] = a * c - b * b - k * (a + c) * (a + c);
+                    int src = Reflect(y + dy, height);
+                    int slot = src % blockSize;
+                    if (ringRow[slot] != src)
+                    {
+                        HorizontalRow(pixels, w, height, src, r, scale, products, ring.AsSpan(3 * slot * w, 3 * w));
+                        ringRow[slot] = src;
+                    }
+                    Add(xx, ring.AsSpan(3 * slot * w, w));
+                    Add(xy, ring.AsSpan(3 * slot * w + w, w));
+                    Add(yy, ring.AsSpan(3 * slot * w + 2 * w, w));
                 }
+                int o = y * w;
                 if (!minEigen.IsEmpty)
                 {
-                    float ha = a * 0.5f, hc = c * 0.5f;
-                    minEigen[i] = ha + hc - MathF.Sqrt((ha - hc) * (ha - hc) + b * b);
-                }
-            }
-        }
-        finally
-        {
-            ArrayPool<float>.Shared.Return(xx);
-            ArrayPool<float>.Shared.Return(xy);
-            ArrayPool<float>.Shared.Return(yy);
-        }
-    }
-
-    internal static int Reflect(int i, int n) => i < 0 ? -i : i >= n ? 2 * n - 2 - i : i;
-
-    private static void GradientProducts(ReadOnlySpan<byte> p, int w, int h, float scale, float[] xx, float[] xy, float[] yy)
-    {
-        for (int y = 0; y < h; y++)
-        {
-            var r0 = p.Slice(Reflect(y - 1, h) * w, w);
-            var r1 = p.Slice(y * w, w);
-            var r2 = p.Slice(Reflect(y + 1, h) * w, w);
-            int o = y * w;
-            for (int x = 0; x < w; x++)
-            {
-                int xm, xp;
-                if (x == 0 || x == w - 1)
-                {
-                    xm = Reflect(x - 1, w);
-                    xp = Reflect(x + 1, w);
-                }
-                else
-                {
-                    xm = x - 1;
-                    xp = x + 1;
-                }
-                int dx = r0[xp] - r0[xm] + 2 * (r1[xp] - r1[xm]) + r2[xp] - r2[xm];
-                int dy = r2[xm] + 2 * r2[x] + r2[xp] - r0[xm] - 2 * r0[x] - r0[xp];
-                float fx = dx * scale, fy = dy * scale;
-                xx[o + x] = fx * fx;
-                xy[o + x] = fx * fy;
-                yy[o + x] = fy * fy;
-            }
-        }
-    }
-
-    /// <summary>In-place unnormalised box sum of radius r with reflecting borders.</summary>
-    private static void BoxSum(Span<float> data, int w, int h, int r)
-    {
-        if (r == 0)
-        {
-            return;
-        }
-        float[] pad = ArrayPool<float>.Shared.Rent(w + 2 * r);
-        float[] rows = ArrayPool<float>.Shared.Rent(w * h);
-        double[] acc = ArrayPool<double>.Shared.Rent(w);
-        try
-        {
-            for (int y = 0; y < h; y++)
-            {
-                var row = data.Slice(y * w, w);
-                for (int i = 0; i < w + 2 * r; i++)
-                {
-                    pad[i] = row[Reflect(i - r, w)];
-                }
-                double s = 0;
-                for (int i = 0; i < 2 * r + 1; i++)
-                {
-                    s += pad[i];
-                }
-                var dst = rows.AsSpan(y * w, w);
-                dst[0] = (float)s;
-                for (int x = 1; x < w; x++)
-                {
-                    s += pad[x + 2 * r] - pad[x - 1];
-                    dst[x] = (float)s;
-                }
-            }
-            Array.Clear(acc, 0, w);
-            for (int k = -r; k <= r; k++)
-            {
-                var src = rows.AsSpan(Reflect(k, h) * w, w);
-                for (int x = 0; x < w; x++)
-                {
-                    acc[x] += src[x];
-                }
-            }
-            for (int y = 0; y < h; y++)
-            {
-                var dst = data.Slice(y * w, w);
-                for (int x = 0; x < w; x++)
-                {
-                    dst[x] = (float)acc[x];
-                }
-                if (y + 1 < h)
-                {
-                    var add = rows.AsSpan(Reflect(y + 1 + r, h) * w, w);
-                    var sub = rows.AsSpan(Reflect(y - r, h) * w, w);
+                    var dst = minEigen.Slice(o, w);
                     for (int x = 0; x < w; x++)
                     {
-                        acc[x] += add[x] - sub[x];
+                        float ha = xx[x] * 0.5f, hc = yy[x] * 0.5f, b = xy[x];
+                        dst[x] = ha + hc - MathF.Sqrt((ha - hc) * (ha - hc) + b * b);
+                    }
+                }
+                if (!harris.IsEmpty)
+                {
+                    var dst = harris.Slice(o, w);
+                    for (int x = 0; x < w; x++)
+                    {
+                        float a = xx[x], b = xy[x], c = yy[x];
+                        dst[x] = a * c - b * b - k * (a + c) * (a + c);
                     }
                 }
             }
         }
         finally
         {
-            ArrayPool<float>.Shared.Return(pad);
-            ArrayPool<float>.Shared.Return(rows);
-            ArrayPool<double>.Shared.Return(acc);
+            ArrayPool<float>.Shared.Return(ring);
+            ArrayPool<float>.Shared.Return(products);
+            ArrayPool<float>.Shared.Return(sums);
+        }
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static int Reflect(int i, int n) => i < 0 ? -i : i >= n ? 2 * n - 2 - i : i;
+
+    private static void Add(Span<float> acc, ReadOnlySpan<float> row)
+    {
+        int x = 0;
+        if (Vector.IsHardwareAccelerated)
+        {
+            var va = MemoryMarshal.Cast<float, Vector<float>>(acc);
+            var vr = MemoryMarshal.Cast<float, Vector<float>>(row);
+            for (int i = 0; i < va.Length; i++)
+            {
+                va[i] += vr[i];
+            }
+            x = va.Length * Vector<float>.Count;
+        }
+        for (; x < acc.Length; x++)
+        {
+            acc[x] += row[x];
+        }
+    }
+
+    /// <summary>Gradient products of one source row, summed over the horizontal window, into three channels of dst.</summary>
+    private static void HorizontalRow(ReadOnlySpan<byte> p, int w, int h, int y, int r, float scale, float[] products, Span<float> dst)
+    {
+        var r0 = p.Slice(Reflect(y - 1, h) * w, w);
+        var r1 = p.Slice(y * w, w);
+        var r2 = p.Slice(Reflect(y + 1, h) * w, w);
+        int pw = w + 2 * r;
+        var pxx = products.AsSpan(0, pw);
+        var pxy = products.AsSpan(pw, pw);
+        var pyy = products.AsSpan(2 * pw, pw);
+        for (int x = 1; x < w - 1; x++)
+        {
+            int dx = r0[x + 1] - r0[x - 1] + 2 * (r1[x + 1] - r1[x - 1]) + r2[x + 1] - r2[x - 1];
+            int dy = r2[x - 1] + 2 * r2[x] + r2[x + 1] - r0[x - 1] - 2 * r0[x] - r0[x + 1];
+            float fx = dx * scale, fy = dy * scale;
+            pxx[x + r] = fx * fx;
+            pxy[x + r] = fx * fy;
+            pyy[x + r] = fy * fy;
+        }
+        foreach (int x in (ReadOnlySpan<int>)[0, w - 1])
+        {
+            int xm = Reflect(x - 1, w), xp = Reflect(x + 1, w);
+            int dx = r0[xp] - r0[xm] + 2 * (r1[xp] - r1[xm]) + r2[xp] - r2[xm];
+            int dy = r2[xm] + 2 * r2[x] + r2[xp] - r0[xm] - 2 * r0[x] - r0[xp];
+            float fx = dx * scale, fy = dy * scale;
+            pxx[x + r] = fx * fx;
+            pxy[x + r] = fx * fy;
+            pyy[x + r] = fy * fy;
+        }
+        for (int i = 1; i <= r; i++)
+        {
+            // Reflect the products at the row ends (index r + x holds column x).
+            pxx[r - i] = pxx[r + Reflect(-i, w)];
+            pxy[r - i] = pxy[r + Reflect(-i, w)];
+            pyy[r - i] = pyy[r + Reflect(-i, w)];
+            pxx[r + w - 1 + i] = pxx[r + Reflect(w - 1 + i, w)];
+            pxy[r + w - 1 + i] = pxy[r + Reflect(w - 1 + i, w)];
+            pyy[r + w - 1 + i] = pyy[r + Reflect(w - 1 + i, w)];
+        }
+        BoxRow(pxx, dst[..w], r);
+        BoxRow(pxy, dst.Slice(w, w), r);
+        BoxRow(pyy, dst.Slice(2 * w, w), r);
+    }
+
+    private static void BoxRow(ReadOnlySpan<float> padded, Span<float> dst, int r)
+    {
+        int width = 2 * r + 1;
+        for (int x = 0; x < dst.Length; x++)
+        {
+            float s = 0;
+            var window = padded.Slice(x, width);
+            for (int k = 0; k < window.Length; k++)
+            {
+                s += window[k];
+            }
+            dst[x] = s;
         }
     }
 }
