@@ -1,8 +1,10 @@
 using System.Buffers;
+using System.Numerics;
+using System.Runtime.InteropServices;
 
 namespace Seamwright.Core.Features;
 
-/// <summary>Separable Gaussian smoothing of an 8-bit image with reflecting borders.</summary>
+/// <summary>Separable Gaussian smoothing of an 8-bit image with reflecting borders (vertical pass, then horizontal).</summary>
 internal static class GaussianSmoother
 {
     public static byte[] Smooth(ReadOnlySpan<byte> src, int w, int h, double sigma, int radius)
@@ -17,58 +19,69 @@ internal static class GaussianSmoother
         {
             kernel[i] = (float)(kernel[i] / sum);
         }
-        float[] tmp = ArrayPool<float>.Shared.Rent(w * h);
-        var dst = new byte[w * h];
+        int n = w * h, pw = w + 2 * radius;
+        float[] image = ArrayPool<float>.Shared.Rent(n);
+        float[] padded = ArrayPool<float>.Shared.Rent(pw + Vector<float>.Count);
+        float[] row = ArrayPool<float>.Shared.Rent(w + Vector<float>.Count);
+        var dst = new byte[n];
         try
         {
-            for (int y = 0; y < h; y++)
+            for (int i = 0; i < n; i++)
             {
-                var row = src.Slice(y * w, w);
-                int o = y * w;
-                for (int x = 0; x < w; x++)
-                {
-                    float acc = 0;
-                    if (x >= radius && x < w - radius)
-                    {
-                        for (int k = -radius; k <= radius; k++)
-                        {
-                            acc += kernel[k + radius] * row[x + k];
-                        }
-                    }
-                    else
-                    {
-                        for (int k = -radius; k <= radius; k++)
-                        {
-                            acc += kernel[k + radius] * row[CornerResponse.Reflect(x + k, w)];
-                        }
-                    }
-                    tmp[o + x] = acc;
-                }
+                image[i] = src[i];
             }
-            var acc2 = new float[w];
             for (int y = 0; y < h; y++)
             {
-                Array.Clear(acc2);
+                var column = padded.AsSpan(radius, w);
+                column.Clear();
                 for (int k = -radius; k <= radius; k++)
                 {
-                    float kk = kernel[k + radius];
-                    var row = tmp.AsSpan(CornerResponse.Reflect(y + k, h) * w, w);
-                    for (int x = 0; x < w; x++)
-                    {
-                        acc2[x] += kk * row[x];
-                    }
+                    MultiplyAdd(column, image.AsSpan(CornerResponse.Reflect(y + k, h) * w, w), kernel[k + radius]);
                 }
-                int o = y * w;
+                for (int i = 1; i <= radius; i++)
+                {
+                    padded[radius - i] = padded[radius + CornerResponse.Reflect(-i, w)];
+                    padded[radius + w - 1 + i] = padded[radius + CornerResponse.Reflect(w - 1 + i, w)];
+                }
+                var output = row.AsSpan(0, w);
+                output.Clear();
+                for (int k = 0; k < kernel.Length; k++)
+                {
+                    MultiplyAdd(output, padded.AsSpan(k, w), kernel[k]);
+                }
+                var d = dst.AsSpan(y * w, w);
                 for (int x = 0; x < w; x++)
                 {
-                    dst[o + x] = (byte)(acc2[x] + 0.5f);
+                    d[x] = (byte)(output[x] + 0.5f);
                 }
             }
         }
         finally
         {
-            ArrayPool<float>.Shared.Return(tmp);
+            ArrayPool<float>.Shared.Return(image);
+            ArrayPool<float>.Shared.Return(padded);
+            ArrayPool<float>.Shared.Return(row);
         }
         return dst;
+    }
+
+    private static void MultiplyAdd(Span<float> acc, ReadOnlySpan<float> src, float weight)
+    {
+        int x = 0;
+        if (Vector.IsHardwareAccelerated)
+        {
+            var va = MemoryMarshal.Cast<float, Vector<float>>(acc);
+            var vs = MemoryMarshal.Cast<float, Vector<float>>(src);
+            var vw = new Vector<float>(weight);
+            for (int i = 0; i < va.Length; i++)
+            {
+                va[i] += vs[i] * vw;
+            }
+            x = va.Length * Vector<float>.Count;
+        }
+        for (; x < acc.Length; x++)
+        {
+            acc[x] += src[x] * weight;
+        }
     }
 }

@@ -18,12 +18,13 @@ public static class NoiseLevel
         // |response| <= 16 * 255.
         Span<int> histogram = new int[16 * 255 + 1];
         long count = 0;
-        for (int y = 1; y < height - 1; y++)
+        // Every second row and column: the median needs far fewer samples than a megapixel image gives.
+        for (int y = 1; y < height - 1; y += 2)
         {
             var a = pixels.Slice((y - 1) * width, width);
             var b = pixels.Slice(y * width, width);
             var c = pixels.Slice((y + 1) * width, width);
-            for (int x = 1; x < width - 1; x++)
+            for (int x = 1; x < width - 1; x += 2)
             {
                 int r = a[x - 1] - 2 * a[x] + a[x + 1]
                     - 2 * (b[x - 1] - 2 * b[x] + b[x + 1])

@@ -26,6 +26,8 @@ public static class OrientedCornerExtractor
         var descriptors = new List<Descriptor256>(options.MaxFeatures);
         var pattern = DescriptorPattern.Points;
         int border = BinaryDescriptor.Reach + 2;
+        var levelImage = image;
+        var levelMask = mask;
         for (int level = 0; level < options.Levels; level++)
         {
             double f = Math.Pow(options.ScaleFactor, level);
@@ -34,8 +36,12 @@ public static class OrientedCornerExtractor
             {
                 break;
             }
-            var levelImage = level == 0 ? image : AreaResampler.Downscale(image, w, h);
-            var levelMask = mask is null ? null : level == 0 ? mask : AreaResampler.Downscale(mask, w, h);
+            if (level > 0)
+            {
+                // Each level from the one before: the cost follows the pyramid's size, not levels x image.
+                levelImage = AreaResampler.Downscale(levelImage, w, h);
+                levelMask = levelMask is null ? null : AreaResampler.Downscale(levelMask, w, h);
+            }
             var corners = CornerDetector.Detect(levelImage.Pixels, w, h,
                 levelMask is null ? ReadOnlySpan<byte>.Empty : levelMask.Pixels, border, budgets[level], options);
             if (corners.Count == 0)

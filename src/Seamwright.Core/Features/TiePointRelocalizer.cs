@@ -130,23 +130,44 @@ public static class TiePointRelocalizer
         {
             return false;
         }
+        if (dx0 > 0 || dx1 < 0 || dy0 > 0 || dy1 < 0)
+        {
+            return false;
+        }
+        // Hill-climb from the predicted position over the integer grid of corrections: the model is
+        // already close, so the peak is a few steps away and most of the grid is never evaluated.
         int gw = dx1 - dx0 + 1, gh = dy1 - dy0 + 1;
         Span<double> score = gw * gh <= 1024 ? stackalloc double[gw * gh] : new double[gw * gh];
-        int bestIndex = -1;
-        best = double.NegativeInfinity;
-        for (int dy = dy0; dy <= dy1; dy++)
+        score.Fill(double.NaN);
+        int cx = -dx0, cy = -dy0;
+        int bestIndex = cy * gw + cx;
+        best = score[bestIndex] = Correlate(template, energy, qx, qy, 0, 0, other);
+        while (true)
         {
-            for (int dx = dx0; dx <= dx1; dx++)
+            int next = bestIndex;
+            for (int ny = Math.Max(0, cy - 1); ny <= Math.Min(gh - 1, cy + 1); ny++)
             {
-                double c = Correlate(template, energy, qx, qy, dx, dy, other);
-                int gi = (dy - dy0) * gw + dx - dx0;
-                score[gi] = c;
-                if (c > best)
+                for (int nx = Math.Max(0, cx - 1); nx <= Math.Min(gw - 1, cx + 1); nx++)
                 {
-                    best = c;
-                    bestIndex = gi;
+                    int gi = ny * gw + nx;
+                    if (double.IsNaN(score[gi]))
+                    {
+                        score[gi] = Correlate(template, energy, qx, qy, nx + dx0, ny + dy0, other);
+                    }
+                    if (score[gi] > score[next])
+                    {
+                        next = gi;
+                    }
                 }
             }
+            if (next == bestIndex)
+            {
+                break;
+            }
+            bestIndex = next;
+            best = score[next];
+            cx = next % gw;
+            cy = next / gw;
         }
         int bxi = bestIndex % gw, byi = bestIndex / gw;
         // A peak on the edge of the searched grid may be a slope towards a better place outside it.

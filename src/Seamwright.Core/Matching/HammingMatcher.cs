@@ -1,3 +1,6 @@
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 using Seamwright.Core.Features;
 
 namespace Seamwright.Core.Matching;
@@ -22,13 +25,19 @@ public static class HammingMatcher
         var bBest = new int[nb];
         var bBestIndex = new int[nb];
         bBest.AsSpan().Fill(int.MaxValue);
+        ref ulong words = ref Unsafe.As<Descriptor256, ulong>(ref MemoryMarshal.GetReference(b));
+        ref int bBestRef = ref MemoryMarshal.GetArrayDataReference(bBest);
+        ref int bBestIndexRef = ref MemoryMarshal.GetArrayDataReference(bBestIndex);
         for (int i = 0; i < na; i++)
         {
             var da = a[i];
+            ulong a0 = da.W0, a1 = da.W1, a2 = da.W2, a3 = da.W3;
             int d1 = int.MaxValue, d2 = int.MaxValue, j1 = -1;
             for (int j = 0; j < nb; j++)
             {
-                int d = Descriptor256.Hamming(da, b[j]);
+                ref ulong q = ref Unsafe.Add(ref words, 4 * j);
+                int d = BitOperations.PopCount(a0 ^ q) + BitOperations.PopCount(a1 ^ Unsafe.Add(ref q, 1))
+                    + BitOperations.PopCount(a2 ^ Unsafe.Add(ref q, 2)) + BitOperations.PopCount(a3 ^ Unsafe.Add(ref q, 3));
                 if (d < d2)
                 {
                     if (d < d1)
@@ -42,10 +51,11 @@ public static class HammingMatcher
                         d2 = d;
                     }
                 }
-                if (d < bBest[j])
+                ref int bb = ref Unsafe.Add(ref bBestRef, j);
+                if (d < bb)
                 {
-                    bBest[j] = d;
-                    bBestIndex[j] = i;
+                    bb = d;
+                    Unsafe.Add(ref bBestIndexRef, j) = i;
                 }
             }
             best[i] = d1;
