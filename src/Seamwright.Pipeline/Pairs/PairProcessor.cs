@@ -35,7 +35,7 @@ public static class PairProcessor
             return Rejected(a, b, settings, 0, 0, [texture], "not run: too little texture", start, 0);
         }
 
-        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, settings.Matching);
+        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, settings.Matching);
         double matchingMs = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         if (result.Matches.Length < settings.MinMatches)
         {
