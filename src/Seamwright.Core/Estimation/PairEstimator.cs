@@ -220,7 +220,7 @@ public static class PairEstimator
         var loRng = new Xoshiro256StarStar(SplitMix64.Mix(seed ^ LocalOptimizationStream));
         if (kind == SamplerKind.Prosac)
         {
-            var sampler = new ProsacSampler(seed, data.Length, s, o.ProsacGrowthHorizon);
+            var sampler = new ProsacSampler(seed, data.Length, s, o.ProsacGrowthHorizon ?? settings.MaxIterations);
             return SamplingLoop.Run(estimator, ref sampler, data, settings, ref loRng);
         }
         var uniform = new UniformSampler(seed, data.Length);

@@ -21,8 +21,12 @@ public sealed record DecisionOptions
     /// </summary>
     public double RunnerUpCloseRatio { get; init; } = 0.5;
 
-    /// <summary>Weak when the corner standard deviation exceeds this many thresholds. Default 2 (judgement).</summary>
-    public double MaxCornerSigmaThresholds { get; init; } = 2;
+    /// <summary>
+    /// Weak when the corner standard deviation exceeds this many thresholds. Default 10 (judgement: as
+    /// far as a distinct runner-up must move a corner; corners far outside a narrow overlap are
+    /// naturally uncertain while the overlap itself stays accurate).
+    /// </summary>
+    public double MaxCornerSigmaThresholds { get; init; } = 10;
 
     /// <summary>Brown and Lowe (IJCV 2007) verification: inliers &gt; alpha + beta x matches in the overlap. alpha = 8.</summary>
     public double BrownLoweAlpha { get; init; } = 8;
