@@ -5,6 +5,12 @@ public interface ISampler
 {
     /// <summary>Fills <paramref name="sample"/> (length = sample size) with distinct indices.</summary>
     void Draw(Span<int> sample);
+
+    /// <summary>True once every draw is uniform over all matches (the standard bound then holds).</summary>
+    bool IsUniform { get; }
+
+    /// <summary>From now on draw uniformly over all matches.</summary>
+    void SwitchToUniform();
 }
 
 /// <summary>How minimal samples are drawn.</summary>
@@ -29,6 +35,12 @@ public struct UniformSampler : ISampler
     }
 
     public void Draw(Span<int> sample) => DrawDistinct(ref _rng, _count, sample);
+
+    public readonly bool IsUniform => true;
+
+    public readonly void SwitchToUniform()
+    {
+    }
 
     /// <summary>Distinct uniform indices from [0, count) by rejection (samples are tiny).</summary>
     internal static void DrawDistinct(ref Xoshiro256StarStar rng, int count, Span<int> sample)

@@ -22,6 +22,7 @@ public struct ProsacSampler : ISampler
     private long _t;          // samples drawn so far
     private double _tn;       // T_n (real-valued)
     private long _tnPrime;    // T'_n (integer schedule)
+    private bool _uniform;    // switched to uniform draws by the loop
 
     public ProsacSampler(ulong seed, int count, int sampleSize, int growthHorizon = DefaultGrowthHorizon)
     {
@@ -45,6 +46,10 @@ public struct ProsacSampler : ISampler
     /// <summary>The size of the top-ranked subset the last sample came from.</summary>
     public readonly int SubsetSize => _n;
 
+    public readonly bool IsUniform => _uniform || (_n == _count && _t > _tnPrime);
+
+    public void SwitchToUniform() => _uniform = true;
+
     public void Draw(Span<int> sample)
     {
         if (sample.Length != _size)
@@ -52,6 +57,11 @@ public struct ProsacSampler : ISampler
             throw new ArgumentException("Sample span length differs from the sample size.", nameof(sample));
         }
         _t++;
+        if (_uniform)
+        {
+            UniformSampler.DrawDistinct(ref _rng, _count, sample);
+            return;
+        }
         while (_n < _count && _t > _tnPrime)
         {
             // T_(n+1) = T_n (n + 1) / (n + 1 - m); T'_(n+1) = T'_n + ceil(T_(n+1) - T_n)

@@ -54,8 +54,28 @@ internal static class SamplingLoop
         var bestScore = ConsensusScore.None;
         int required = settings.MaxIterations;
         int iterations = 0, degenerate = 0, localRuns = 0;
-        while (iterations < required)
+        // A progressive sampler draws from the top-ranked matches only, so the standard bound (which
+        // assumes uniform draws over all matches) is not yet a guarantee when it is first met. Then
+        // a uniform phase of the bound's length follows (the bound keeps tightening on new bests).
+        int phaseStart = 0;
+        bool confirming = sampler.IsUniform;
+        while (true)
         {
+            if (iterations >= settings.MaxIterations)
+            {
+                break;
+            }
+            if (iterations - phaseStart >= required)
+            {
+                if (confirming)
+                {
+                    break;
+                }
+                confirming = true;
+                sampler.SwitchToUniform();
+                phaseStart = iterations;
+                continue;
+            }
             iterations++;
             sampler.Draw(indices);
             for (int i = 0; i < s; i++)
@@ -96,7 +116,7 @@ internal static class SamplingLoop
                 required = Math.Min(required, TerminationBound.Samples(settings.Confidence, ratio, s, settings.MaxIterations));
             }
         }
-        string termination = required < settings.MaxIterations
+        string termination = iterations < settings.MaxIterations
             ? FormattableString.Invariant($"confidence bound reached after {iterations} samples (p = {settings.Confidence})")
             : FormattableString.Invariant($"iteration cap of {settings.MaxIterations} samples reached");
         return new SamplingOutcome(best, bestScore, iterations, degenerate, localRuns, termination);
