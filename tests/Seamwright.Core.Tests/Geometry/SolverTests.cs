@@ -25,7 +25,7 @@ public class SolverTests
     public void Minimal_ExactSample_RecoversTruth(MotionModel model)
     {
         var truth = SyntheticSweepTests.TruthFor(model);
-        int s = Quality.PairDecision.MinimalSize(model);
+        int s = Seamwright.Core.Quality.PairDecision.MinimalSize(model);
         var sample = Exact(truth, s, 11);
         Span<Transform2D> models = stackalloc Transform2D[4];
         int count = model switch
