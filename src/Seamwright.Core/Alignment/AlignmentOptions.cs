@@ -27,6 +27,9 @@ public sealed record AlignmentOptions
     /// <summary>A link whose median tie-point residual under the joint solution exceeds this is demoted.</summary>
     public double LinkResidualLimitPx { get; init; } = 5;
 
+    /// <summary>Refine all transforms jointly (default); false keeps the spanning-tree chaining (for comparison).</summary>
+    public bool JointRefinement { get; init; } = true;
+
     /// <summary>Work cap on Levenberg-Marquardt iterations.</summary>
     public int MaxIterations { get; init; } = 60;
 

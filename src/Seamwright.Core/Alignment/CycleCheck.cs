@@ -125,7 +125,7 @@ internal static class CycleCheck
         int at = start;
         foreach (int l in path)
         {
-            loop = graph.Step(l, at) * loop;
+            loop = graph.FittedStep(l, at) * loop;
             at = graph.Other(l, at);
         }
         double sum = 0;

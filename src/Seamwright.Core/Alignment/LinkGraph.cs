@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Geometry;
 
 namespace Seamwright.Core.Alignment;
@@ -10,7 +11,7 @@ internal sealed class LinkGraph
 {
     private readonly List<int>[] _adjacent;
 
-    public LinkGraph(IReadOnlyList<ImageSize> sizes, IReadOnlyList<AlignmentLink> links, IReadOnlyList<int> usable)
+    public LinkGraph(IReadOnlyList<ImageSize> sizes, IReadOnlyList<AlignmentLink> links, IReadOnlyList<int> usable, MotionModel? fitModel = null, double robustScalePx = 2)
     {
         Sizes = sizes;
         Links = links;
@@ -21,6 +22,8 @@ internal sealed class LinkGraph
         }
         Forward = new Transform2D[links.Count];
         Backward = new Transform2D[links.Count];
+        FittedForward = new Transform2D[links.Count];
+        FittedBackward = new Transform2D[links.Count];
         foreach (int l in usable)
         {
             var link = links[l];
@@ -28,6 +31,21 @@ internal sealed class LinkGraph
             var (bx, by) = TransformOps.Centroid(link.TiePoints, first: false, sizes[link.ImageB]);
             Forward[l] = TransformOps.Orient(link.AToB, ax, ay);
             TransformOps.TryOrientedInverse(link.AToB, bx, by, out Backward[l]);
+            FittedForward[l] = Forward[l];
+            FittedBackward[l] = Backward[l];
+            if (fitModel is MotionModel m && link.TiePoints.Length >= 2 * ModelParameters.Count(m))
+            {
+                // Least-squares fit of the link to its own tie points (reference A): the cycle check
+                // measures what the tie points say, not how a rough estimate extrapolates.
+                var fit = new JointRefiner(m, sizes, link.ImageA, [link.ImageA, link.ImageB], [(link.ImageA, link.ImageB, link.TiePoints)], robustScalePx)
+                    .Solve(new Dictionary<int, Transform2D> { [link.ImageA] = Transform2D.Identity, [link.ImageB] = Backward[l] }, 30);
+                var bToA = fit.ToReference[link.ImageB];
+                if (bToA.IsFinite && TransformOps.TryOrientedInverse(bToA, ax, ay, out var aToB))
+                {
+                    FittedBackward[l] = TransformOps.Orient(bToA, bx, by);
+                    FittedForward[l] = aToB;
+                }
+            }
             _adjacent[link.ImageA].Add(l);
             _adjacent[link.ImageB].Add(l);
         }
@@ -44,6 +62,15 @@ internal sealed class LinkGraph
 
     /// <summary>Links still in use (demotion clears the flag).</summary>
     public bool[] Active { get; }
+
+    /// <summary>A to B of each usable link, fitted to its tie points (the given transform when it has too few).</summary>
+    public Transform2D[] FittedForward { get; }
+
+    /// <summary>B to A of each usable link, fitted to its tie points.</summary>
+    public Transform2D[] FittedBackward { get; }
+
+    /// <summary>Fitted transform taking pixels of <paramref name="from"/> to pixels of the other end of the link.</summary>
+    public Transform2D FittedStep(int link, int from) => Links[link].ImageA == from ? FittedForward[link] : FittedBackward[link];
 
     /// <summary>A to B of each usable link.</summary>
     public Transform2D[] Forward { get; }

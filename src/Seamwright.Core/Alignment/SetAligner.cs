@@ -38,7 +38,7 @@ public static class SetAligner
         public SetAlignment Run()
         {
             var usable = Prepare();
-            _graph = new LinkGraph(sizes, _links, usable);
+            _graph = new LinkGraph(sizes, _links, usable, model, options.RobustScalePx);
             _demoted.AddRange(CycleCheck.Run(_graph, options));
             List<ComponentResult> results;
             int round = 0;
@@ -157,7 +157,7 @@ public static class SetAligner
                     .ToArray();
                 var refiner = new JointRefiner(model, sizes, reference, members,
                     [.. componentLinks.Select(l => (_links[l].ImageA, _links[l].ImageB, _links[l].TiePoints))], options.RobustScalePx);
-                var joint = refiner.Solve(initial, options.MaxIterations);
+                var joint = options.JointRefinement ? refiner.Solve(initial, options.MaxIterations) : new JointSolution(initial, 0, 0, 0);
                 var solved = joint.ToReference.ToDictionary(kv => kv.Key, kv => TransformOps.Orient(kv.Value, 0, 0).Normalized());
                 if (ExcludeOffPlane(solved, reference, Allowed, "joint solution"))
                 {
@@ -172,7 +172,7 @@ public static class SetAligner
                     Residuals(initial[link.ImageA], initial[link.ImageB], link.TiePoints, treeResiduals);
                     int before = jointResiduals.Count;
                     Residuals(solved[link.ImageA], solved[link.ImageB], link.TiePoints, jointResiduals);
-                    if (allowRecheck)
+                    if (allowRecheck && options.JointRefinement)
                     {
                         double median = Median(jointResiduals.Skip(before).ToList());
                         if (median > options.LinkResidualLimitPx)
