@@ -58,7 +58,8 @@ details ul{margin:6px 0 4px;padding-left:20px;color:var(--muted)}
 .thumb img{display:block;max-width:100%;height:auto;margin:0 auto 6px;background:#ddd}
 .thumb .name{font-weight:600;font-size:13px;word-break:break-all}
 .thumb .meta{font-size:12px;color:var(--muted)}
-.thumb pre{font:11px/1.35 var(--mono);margin:6px 0 0;white-space:pre;overflow-x:auto;color:var(--ink)}
+.thumb table.m{margin-top:6px;font:11px/1.3 var(--mono);width:auto;border-left:2px solid var(--rule);border-right:2px solid var(--rule)}
+.thumb table.m td{border:0;padding:0 6px;text-align:right}
 .badge{font-size:11px;font-weight:700;color:#fff;background:var(--accent);border-radius:3px;padding:1px 6px;margin-left:6px}
 footer{color:var(--muted);font-size:12px;text-align:center;padding:0 28px 30px}
 footer code{font-family:var(--mono)}

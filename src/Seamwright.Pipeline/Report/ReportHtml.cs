@@ -144,13 +144,17 @@ public static class ReportHtml
             }
             if (image.ToReference is { Length: 9 } m)
             {
-                sb.Append("<pre title=\"toReference\">");
+                sb.Append("<table class=\"m\" title=\"toReference (3x3, row-major)\">");
                 for (int r = 0; r < 3; r++)
                 {
-                    sb.Append(F($"{m[3 * r],12:0.######} {m[3 * r + 1],12:0.######} {m[3 * r + 2],12:0.###}"));
-                    sb.Append(r < 2 ? "\n" : "");
+                    sb.Append("<tr>");
+                    for (int c = 0; c < 3; c++)
+                    {
+                        sb.Append("<td>").Append(m[3 * r + c].ToString("G5", CultureInfo.InvariantCulture)).Append("</td>");
+                    }
+                    sb.Append("</tr>");
                 }
-                sb.Append("</pre>");
+                sb.Append("</table>");
             }
             sb.Append("</div>");
         }
