@@ -15,6 +15,7 @@ internal static class CommandLine
         {
             "version" or "--version" => Version(),
             "estimate" => Commands.EstimateCommand.Run(rest, Console.Out, Console.Error),
+            "pair" => Commands.PairCommand.Run(rest, Console.Out, Console.Error),
             _ => Unknown(args[0]),
         };
     }
@@ -29,6 +30,11 @@ internal static class CommandLine
                                       options: --model homography|affine|similarity|translation,
                                       --threshold PX, --seed N, --no-refine, --size-a WxH,
                                       --size-b WxH, --json
+          pair IMAGE_A IMAGE_B [options]
+                                      one pairwise transform from two images (full-resolution
+                                      pixels); options: --model M, --threshold PX, --seed N,
+                                      --mask-a FILE, --mask-b FILE (mask image or .txt of
+                                      'x y width height' rectangles), --json
         """;
 
     private static int Version()
