@@ -26,6 +26,9 @@ public static class OrientedCornerExtractor
         var descriptors = new List<Descriptor256>(options.MaxFeatures);
         var pattern = DescriptorPattern.Points;
         int border = BinaryDescriptor.Reach + 2;
+        // Noise is estimated where it is still white (level 0) and carried to every level by simulation.
+        double sigma = NoiseLevel.Estimate(image.Pixels, image.Width, image.Height);
+        var noisePerLevel = NoiseResponse.PerUnitVariance(options);
         var levelImage = image;
         var levelMask = mask;
         double levelScale = 1.0;
@@ -47,7 +50,8 @@ public static class OrientedCornerExtractor
             }
             int w = levelImage.Width, h = levelImage.Height;
             var corners = CornerDetector.Detect(levelImage.Pixels, w, h,
-                levelMask is null ? ReadOnlySpan<byte>.Empty : levelMask.Pixels, border, budgets[level], options);
+                levelMask is null ? ReadOnlySpan<byte>.Empty : levelMask.Pixels, border, budgets[level],
+                NoiseFloor(options, noisePerLevel, level, sigma), options);
             if (corners.Count == 0)
             {
                 continue;
@@ -65,6 +69,20 @@ public static class OrientedCornerExtractor
             }
         }
         return new FeatureSet([.. keypoints], [.. descriptors]);
+    }
+
+    /// <summary>
+    /// The smallest response kept on a level: NoiseFactor times the mean response of pure noise there,
+    /// that is level-0 noise carried through the pyramid plus the rounding to 8 bits of the level
+    /// itself (white at that level, at least MinNoiseSigma).
+    /// </summary>
+    private static float NoiseFloor(CornerDetectorOptions options, double[] perUnit, int level, double sigma)
+    {
+        double floorSigma = options.MinNoiseSigma;
+        double variance = level == 0
+            ? perUnit[0] * Math.Max(sigma, floorSigma) * Math.Max(sigma, floorSigma)
+            : perUnit[level] * sigma * sigma + perUnit[0] * floorSigma * floorSigma;
+        return (float)(options.NoiseFactor * variance);
     }
 
     /// <summary>Budget per level in proportion to the level's area (geometric in 1 / ScaleFactor^2).</summary>
