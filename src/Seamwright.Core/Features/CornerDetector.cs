@@ -55,7 +55,8 @@ internal static class CornerDetector
                 {
                     continue;
                 }
-                if (!mask.IsEmpty && mask[i] < 128)
+                // Only pixels wholly outside excluded regions (area averaging leaves partly covered ones below 255).
+                if (!mask.IsEmpty && mask[i] < 255)
                 {
                     continue;
                 }
