@@ -29,3 +29,8 @@ public sealed record PairResultRecord(string ImageA, string ImageB, string Statu
 
 /// <summary>A recorded failure (bad file or failed set) with its reason.</summary>
 public sealed record FailureRecord(long? RunId, string SetId, string Path, string Reason, DateTime AtUtc);
+
+/// <summary>What one run did with one input file.</summary>
+/// <param name="Decoded">True when the file was decoded and analysed (a feature-cache miss).</param>
+/// <param name="BadReason">Why the file could not be used; null when it was.</param>
+public sealed record FileOutcome(string Path, long Size, long MtimeTicks, string? Hash, bool Decoded, string? BadReason);

@@ -150,13 +150,50 @@ public sealed class StateStore : IDisposable
     public void MarkFileRemoved(string path) =>
         Exec("UPDATE files SET state='removed' WHERE path=$p", ("$p", path));
 
-    public void MarkFileAnalysed(string path, string hash, bool decoded, long runId) =>
-        Exec("UPDATE files SET state='analysed', hash=$h, reason=NULL, analyses=analyses+$d, last_run=$r WHERE path=$p",
-            ("$p", path), ("$h", hash), ("$d", decoded ? 1 : 0), ("$r", runId));
-
-    public void MarkFileBad(string path, string? hash, string reason, bool decoded, long runId) =>
-        Exec("UPDATE files SET state='bad', hash=$h, reason=$why, analyses=analyses+$d, last_run=$r WHERE path=$p",
-            ("$p", path), ("$h", (object?)hash ?? DBNull.Value), ("$why", reason), ("$d", decoded ? 1 : 0), ("$r", runId));
+    /// <summary>Records several observed files in one transaction; returns the paths that are new or changed.</summary>
+    public IReadOnlyList<string> ObserveFiles(IEnumerable<(string Path, string SetId, long Size, long MtimeTicks)> files)
+    {
+        ArgumentNullException.ThrowIfNull(files);
+        lock (_gate)
+        {
+            var changed = new List<string>();
+            using var tx = _db.BeginTransaction();
+            using var read = _db.CreateCommand();
+            read.Transaction = tx;
+            read.CommandText = "SELECT size, mtime, state FROM files WHERE path=$p";
+            var rp = read.Parameters.Add("$p", SqliteType.Text);
+            using var write = _db.CreateCommand();
+            write.Transaction = tx;
+            write.CommandText =
+                """
+                INSERT INTO files(path, set_id, size, mtime, state, first_seen) VALUES($p, $s, $z, $m, 'seen', $t)
+                ON CONFLICT(path) DO UPDATE SET set_id=$s, size=$z, mtime=$m, state='seen', reason=NULL, hash=NULL
+                """;
+            var wp = write.Parameters.Add("$p", SqliteType.Text);
+            var ws = write.Parameters.Add("$s", SqliteType.Text);
+            var wz = write.Parameters.Add("$z", SqliteType.Integer);
+            var wm = write.Parameters.Add("$m", SqliteType.Integer);
+            write.Parameters.AddWithValue("$t", DateTime.UtcNow.Ticks);
+            foreach (var f in files)
+            {
+                rp.Value = f.Path;
+                bool same = false;
+                using (var r = read.ExecuteReader())
+                {
+                    same = r.Read() && r.GetInt64(0) == f.Size && r.GetInt64(1) == f.MtimeTicks && r.GetString(2) != "removed";
+                }
+                if (same)
+                {
+                    continue;
+                }
+                wp.Value = f.Path; ws.Value = f.SetId; wz.Value = f.Size; wm.Value = f.MtimeTicks;
+                write.ExecuteNonQuery();
+                changed.Add(f.Path);
+            }
+            tx.Commit();
+            return changed;
+        }
+    }
 
     public IReadOnlyList<FileRecord> Files(string? setId = null) =>
         Query(setId is null ? "SELECT * FROM files ORDER BY path" : "SELECT * FROM files WHERE set_id=$s ORDER BY path",
@@ -216,15 +253,51 @@ public sealed class StateStore : IDisposable
     }
 
     /// <summary>Records a finished run, its pair results, and the set as done with the run's fingerprint and inputs digest.</summary>
-    public void FinishRun(long runId, string setId, string fingerprint, string inputs, RunSummary summary, IReadOnlyList<PairResultRecord> pairs)
+    public void FinishRun(long runId, string setId, string fingerprint, string inputs, RunSummary summary,
+        IReadOnlyList<PairResultRecord> pairs, IReadOnlyList<FileOutcome> files)
     {
         ArgumentNullException.ThrowIfNull(summary);
         ArgumentNullException.ThrowIfNull(pairs);
+        ArgumentNullException.ThrowIfNull(files);
         lock (_gate)
         {
             using var tx = _db.BeginTransaction();
             using var cmd = _db.CreateCommand();
             cmd.Transaction = tx;
+            long at = DateTime.UtcNow.Ticks;
+            foreach (var f in files)
+            {
+                cmd.Parameters.Clear();
+                cmd.CommandText =
+                    """
+                    INSERT INTO files(path, set_id, size, mtime, hash, state, reason, analyses, first_seen, last_run)
+                    VALUES($p, $s, $z, $m, $h, $st, $why, $d, $t, $r)
+                    ON CONFLICT(path) DO UPDATE SET set_id=$s, size=$z, mtime=$m, hash=$h, state=$st, reason=$why, analyses=analyses+$d, last_run=$r
+                    """;
+                cmd.Parameters.AddWithValue("$p", f.Path);
+                cmd.Parameters.AddWithValue("$s", setId);
+                cmd.Parameters.AddWithValue("$z", f.Size);
+                cmd.Parameters.AddWithValue("$m", f.MtimeTicks);
+                cmd.Parameters.AddWithValue("$h", (object?)f.Hash ?? DBNull.Value);
+                cmd.Parameters.AddWithValue("$st", f.BadReason is null ? "analysed" : "bad");
+                cmd.Parameters.AddWithValue("$why", (object?)f.BadReason ?? DBNull.Value);
+                cmd.Parameters.AddWithValue("$d", f.Decoded ? 1 : 0);
+                cmd.Parameters.AddWithValue("$t", at);
+                cmd.Parameters.AddWithValue("$r", runId);
+                cmd.ExecuteNonQuery();
+                if (f.BadReason is not null)
+                {
+                    cmd.CommandText = "INSERT INTO failures(run_id, set_id, path, reason, at) VALUES($r, $s, $p, $why, $t)";
+                    cmd.ExecuteNonQuery();
+                }
+            }
+            cmd.Parameters.Clear();
+            cmd.CommandText = "UPDATE files SET state='removed' WHERE set_id=$s AND state!='removed' AND last_run IS NOT NULL AND last_run!=$r";
+            cmd.Parameters.AddWithValue("$s", setId);
+            cmd.Parameters.AddWithValue("$r", runId);
+            cmd.ExecuteNonQuery();
+            cmd.Parameters.Clear();
+            cmd.CommandText = "INSERT OR REPLACE INTO pair_results VALUES($r, $s, $a, $b, $st, $i, $m, $why)";
             cmd.CommandText = "INSERT OR REPLACE INTO pair_results VALUES($r, $s, $a, $b, $st, $i, $m, $why)";
             var pr = cmd.Parameters.Add("$r", SqliteType.Integer);
             var ps = cmd.Parameters.Add("$s", SqliteType.Text);
