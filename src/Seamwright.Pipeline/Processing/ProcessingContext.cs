@@ -9,7 +9,8 @@ namespace Seamwright.Pipeline.Processing;
 public sealed class ProcessingContext
 {
     public required string OutputRoot { get; init; }
-    public required SeamwrightOptions Options { get; init; }
+    /// <summary>Current settings; replaced on a configuration reload (reads are atomic reference loads).</summary>
+    public required SeamwrightOptions Options { get; set; }
     public required StateStore Store { get; init; }
     public required ConfidenceLog Log { get; init; }
     public required IPairEngine Engine { get; init; }
