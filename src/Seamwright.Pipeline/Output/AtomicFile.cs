@@ -13,16 +13,37 @@ public static class AtomicFile
     /// <summary>Suffix of temporary files; a sweep at start removes leftovers of a crash.</summary>
     public const string TempSuffix = ".seamtmp";
 
-    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes)
+    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes) => WriteAllBytes(path, bytes, syncDirectory: true);
+
+    /// <summary>
+    /// With <paramref name="syncDirectory"/> false the folder is not fsynced: the caller batches many
+    /// files and calls <see cref="SyncDirectory"/> once for each folder before anything that depends
+    /// on them (the manifest) is written.
+    /// </summary>
+    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes, bool syncDirectory)
     {
         byte[] copy = bytes.ToArray();
-        Write(path, s => s.Write(copy));
+        Write(path, s => s.Write(copy), syncDirectory);
+    }
+
+    /// <summary>
+    /// Atomic (a reader sees the old or the whole new file) but not durable: no flush to disk. For
+    /// caches, whose entries are checked on read and rebuilt when empty or damaged after a power cut.
+    /// </summary>
+    public static void WriteAllBytesNotDurable(string path, ReadOnlySpan<byte> bytes)
+    {
+        byte[] copy = bytes.ToArray();
+        Write(path, s => s.Write(copy), syncDirectory: false, flushToDisk: false);
     }
 
     public static void WriteAllText(string path, string text) =>
         WriteAllBytes(path, System.Text.Encoding.UTF8.GetBytes(text));
 
-    public static void Write(string path, Action<Stream> writeContent)
+    public static void Write(string path, Action<Stream> writeContent) => Write(path, writeContent, syncDirectory: true);
+
+    public static void Write(string path, Action<Stream> writeContent, bool syncDirectory) => Write(path, writeContent, syncDirectory, flushToDisk: true);
+
+    private static void Write(string path, Action<Stream> writeContent, bool syncDirectory, bool flushToDisk)
     {
         ArgumentNullException.ThrowIfNull(writeContent);
         string full = Path.GetFullPath(path);
@@ -34,10 +55,13 @@ public static class AtomicFile
             using (var fs = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 64 * 1024))
             {
                 writeContent(fs);
-                fs.Flush(flushToDisk: true);
+                fs.Flush(flushToDisk);
             }
             File.Move(temp, full, overwrite: true);
-            SyncDirectory(dir);
+            if (syncDirectory)
+            {
+                SyncDirectory(dir);
+            }
         }
         catch
         {
@@ -81,7 +105,8 @@ public static class AtomicFile
         }
     }
 
-    private static void SyncDirectory(string dir)
+    /// <summary>Makes the renames inside <paramref name="dir"/> durable (fsync of the folder on Unix).</summary>
+    public static void SyncDirectory(string dir)
     {
         if (RuntimeInformation.IsOSPlatform(OSPlatform.Windows))
         {

@@ -6,7 +6,7 @@ namespace Seamwright.Pipeline.Processing;
 /// <summary>
 /// Per-image analyses on disk, keyed by the image's SHA-256 and the feature-settings fingerprint,
 /// under <c>.seamwright/features/&lt;fingerprint&gt;/&lt;hash[0..2]&gt;/&lt;hash&gt;.bin</c>. Entries are written
-/// atomically; an entry that fails to decode is treated as absent and rewritten.
+/// atomically but not flushed (a cache); an entry that fails to decode is treated as absent and rewritten.
 /// </summary>
 public sealed class FeatureCache(string outputRoot, IPairEngine engine)
 {
@@ -32,7 +32,7 @@ public sealed class FeatureCache(string outputRoot, IPairEngine engine)
     }
 
     public void Put(string hash, string featureFingerprint, ImageAnalysis analysis) =>
-        AtomicFile.WriteAllBytes(PathOf(hash, featureFingerprint), engine.Encode(analysis));
+        AtomicFile.WriteAllBytesNotDurable(PathOf(hash, featureFingerprint), engine.Encode(analysis));
 
     private string PathOf(string hash, string fp) => Path.Combine(_folder, fp, hash[..2], hash + ".bin");
 }
