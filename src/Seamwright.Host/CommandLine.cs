@@ -18,6 +18,7 @@ internal static class CommandLine
             return args[0] switch
             {
                 "version" or "--version" => Version(),
+                "estimate" => EstimateCommand.Run(rest, Console.Out, Console.Error),
                 "run" => RunCommand.Execute(rest),
                 "watch" => WatchCommand.Execute(rest),
                 "status" => StatusCommand.Execute(rest),
@@ -47,6 +48,10 @@ internal static class CommandLine
                                       sets done, pending, stale and failed, bad files with reasons
           {RerunCommand.Usage}
                                       redo the sets whose settings or inputs changed (--dry-run lists them)
+          estimate FILE [options]     one pairwise transform from a match file (x1,y1,x2,y2 per line);
+                                      options: --model homography|affine|similarity|translation,
+                                      --threshold PX, --seed N, --no-refine, --size-a WxH,
+                                      --size-b WxH, --json
           version                     print the tool version
 
         Settings: config/appsettings.json beside the executable (or --config FILE), environment

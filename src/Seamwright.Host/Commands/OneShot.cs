@@ -181,6 +181,10 @@ internal static class OneShot
     private static int Summarize(RootSession session, IReadOnlyList<SetInputs> sets, IReadOnlyDictionary<string, SetOutcome> outcomes, TimeSpan elapsed, string output)
     {
         bool plain = System.Console.IsOutputRedirected;
+        if (plain)
+        {
+            AnsiConsole.Profile.Width = 160; // a log file or pipe has no width; keep the table on one line per set
+        }
         var table = new Table().Border(plain ? TableBorder.Ascii : TableBorder.Rounded)
             .AddColumn("Set").AddColumn("This run").AddColumn(new TableColumn("Run").RightAligned())
             .AddColumn(new TableColumn("Images").RightAligned()).AddColumn(new TableColumn("Pairs").RightAligned())

@@ -62,7 +62,8 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
             }
             Range(e, $"{k}:Estimation:ThresholdPx", p.Estimation.ThresholdPx, 0.1, 100, "pixels");
             Range(e, $"{k}:Estimation:RatioTest", p.Estimation.RatioTest, 0.1, 1.0, "(ratio)");
-            Range(e, $"{k}:Estimation:MinInliers", p.Estimation.MinInliers, 4, 100000, "inliers");
+            Range(e, $"{k}:Estimation:Confidence", p.Estimation.Confidence, 0.5, 0.999999, "(probability)");
+            Range(e, $"{k}:Estimation:MaxIterations", p.Estimation.MaxIterations, 10, 10000000, "iterations");
             foreach (var ext in p.Extensions)
             {
                 if (!ext.StartsWith('.') || ext.Length < 2)

@@ -8,7 +8,7 @@ public static class EngineFactory
     public static IPairEngine Create(string name) => name switch
     {
         ChecksumEngine.EngineName => new ChecksumEngine(),
-        "features" => throw new NotSupportedException("The 'features' engine is not wired into this build yet."),
+        "features" => new FeaturesEngine(),
         _ => throw new ArgumentOutOfRangeException(nameof(name), name, "unknown engine; allowed: " + string.Join(", ", Names)),
     };
 }

@@ -3,27 +3,44 @@ using System.Runtime.InteropServices;
 namespace Seamwright.Pipeline.Output;
 
 /// <summary>
-/// Writes a file so that a reader sees either the old content or the complete new content:
-/// a temporary file in the same folder, flushed to disk, renamed over the target, and on Unix
-/// the folder fsynced so the rename itself survives a power cut (see RELIABILITY.md).
-/// A failed flush is never retried: the whole file is rewritten from its source by the caller.
+/// Atomic file replacement: the content goes to a temporary file in the target's folder, is
+/// flushed to disk (<c>Flush(true)</c>), and is renamed over the target; on Linux and macOS the
+/// folder is then flushed too so the rename itself survives a power cut. A reader sees the old
+/// file or the new one, never a mix. Temporary names start with '.' and end with
+/// <see cref="TemporarySuffix"/>, so scanners can skip them and clean-up can find them. After a
+/// failed flush the temporary file is deleted and the error thrown: the caller rewrites the whole
+/// file from its source (retrying a failed flush can report success for lost data).
 /// </summary>
 public static class AtomicFile
 {
-    /// <summary>Suffix of temporary files; a sweep at start removes leftovers of a crash.</summary>
-    public const string TempSuffix = ".seamtmp";
+    /// <summary>Suffix of temporary files written by this class.</summary>
+    public const string TemporarySuffix = ".seamtmp";
 
-    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes) => WriteAllBytes(path, bytes, syncDirectory: true);
+    /// <summary>True for a name this class uses for temporary files.</summary>
+    public static bool IsTemporary(string path) =>
+        Path.GetFileName(path).StartsWith('.') && path.EndsWith(TemporarySuffix, StringComparison.Ordinal);
+
+    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes)
+    {
+        byte[] copy = bytes.ToArray();
+        Write(path, stream => stream.Write(copy));
+    }
+
+    public static void WriteAllText(string path, string text) =>
+        WriteAllBytes(path, new System.Text.UTF8Encoding(encoderShouldEmitUTF8Identifier: false).GetBytes(text));
+
+    /// <summary>Alias of <see cref="TemporarySuffix"/>.</summary>
+    public const string TempSuffix = TemporarySuffix;
 
     /// <summary>
-    /// With <paramref name="syncDirectory"/> false the folder is not fsynced: the caller batches many
-    /// files and calls <see cref="SyncDirectory"/> once for each folder before anything that depends
-    /// on them (the manifest) is written.
+    /// With <paramref name="syncDirectory"/> false the folder is not fsynced: the caller writes many
+    /// files and calls <see cref="SyncDirectory"/> once per folder before anything that depends on
+    /// them (a manifest) is written.
     /// </summary>
     public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes, bool syncDirectory)
     {
         byte[] copy = bytes.ToArray();
-        Write(path, s => s.Write(copy), syncDirectory);
+        Write(path, stream => stream.Write(copy), flushToDisk: true, syncDirectory);
     }
 
     /// <summary>
@@ -33,42 +50,11 @@ public static class AtomicFile
     public static void WriteAllBytesNotDurable(string path, ReadOnlySpan<byte> bytes)
     {
         byte[] copy = bytes.ToArray();
-        Write(path, s => s.Write(copy), syncDirectory: false, flushToDisk: false);
+        Write(path, stream => stream.Write(copy), flushToDisk: false, syncDirectory: false);
     }
 
-    public static void WriteAllText(string path, string text) =>
-        WriteAllBytes(path, System.Text.Encoding.UTF8.GetBytes(text));
-
-    public static void Write(string path, Action<Stream> writeContent) => Write(path, writeContent, syncDirectory: true);
-
-    public static void Write(string path, Action<Stream> writeContent, bool syncDirectory) => Write(path, writeContent, syncDirectory, flushToDisk: true);
-
-    private static void Write(string path, Action<Stream> writeContent, bool syncDirectory, bool flushToDisk)
-    {
-        ArgumentNullException.ThrowIfNull(writeContent);
-        string full = Path.GetFullPath(path);
-        string dir = Path.GetDirectoryName(full) ?? throw new ArgumentException("No folder in " + path, nameof(path));
-        Directory.CreateDirectory(dir);
-        string temp = Path.Combine(dir, "." + Path.GetFileName(full) + "." + Guid.NewGuid().ToString("N")[..8] + TempSuffix);
-        try
-        {
-            using (var fs = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 64 * 1024))
-            {
-                writeContent(fs);
-                fs.Flush(flushToDisk);
-            }
-            File.Move(temp, full, overwrite: true);
-            if (syncDirectory)
-            {
-                SyncDirectory(dir);
-            }
-        }
-        catch
-        {
-            TryDelete(temp);
-            throw;
-        }
-    }
+    /// <summary>Makes the renames inside <paramref name="folder"/> durable (fsync of the folder on POSIX).</summary>
+    public static void SyncDirectory(string folder) => FlushFolder(folder);
 
     /// <summary>Deletes temporary files left by an interrupted write under <paramref name="root"/>; returns how many.</summary>
     public static int SweepTemporaries(string root)
@@ -78,59 +64,109 @@ public static class AtomicFile
             return 0;
         }
         int n = 0;
-        foreach (var f in Directory.EnumerateFiles(root, "*" + TempSuffix, SearchOption.AllDirectories))
+        foreach (var f in Directory.EnumerateFiles(root, "*" + TemporarySuffix, SearchOption.AllDirectories))
         {
-            if (TryDelete(f))
+            if (IsTemporary(f))
             {
-                n++;
+                try
+                {
+                    File.Delete(f);
+                    n++;
+                }
+                catch (IOException)
+                {
+                }
+                catch (UnauthorizedAccessException)
+                {
+                }
             }
         }
         return n;
     }
 
-    private static bool TryDelete(string path)
+    /// <summary>Writes through <paramref name="write"/> into a temporary file, then replaces <paramref name="path"/>.</summary>
+    public static void Write(string path, Action<Stream> write) => Write(path, write, flushToDisk: true, syncDirectory: true);
+
+    private static void Write(string path, Action<Stream> write, bool flushToDisk, bool syncDirectory)
     {
+        ArgumentException.ThrowIfNullOrEmpty(path);
+        ArgumentNullException.ThrowIfNull(write);
+        string full = Path.GetFullPath(path);
+        string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
+        Directory.CreateDirectory(folder);
+        string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.{Guid.NewGuid():N}{TemporarySuffix}");
         try
         {
-            File.Delete(path);
-            return true;
+            using (var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536))
+            {
+                write(stream);
+                stream.Flush(flushToDisk);
+            }
+            File.Move(temp, full, overwrite: true);
         }
-        catch (IOException)
+        catch
         {
-            return false;
+            TryDelete(temp);
+            throw;
         }
-        catch (UnauthorizedAccessException)
+        if (syncDirectory)
         {
-            return false;
+            FlushFolder(folder);
         }
     }
 
-    /// <summary>Makes the renames inside <paramref name="dir"/> durable (fsync of the folder on Unix).</summary>
-    public static void SyncDirectory(string dir)
+    private static void TryDelete(string temp)
     {
-        if (RuntimeInformation.IsOSPlatform(OSPlatform.Windows))
+        try
         {
-            return; // NTFS journals the rename; a folder handle cannot be flushed from .NET.
+            File.Delete(temp);
         }
-        int fd = NativeMethods.open(dir, 0 /* O_RDONLY */);
-        if (fd >= 0)
+        catch (IOException)
         {
-            _ = NativeMethods.fsync(fd);
+            // Left for the start-up clean-up, which removes stale temporary files.
+        }
+        catch (UnauthorizedAccessException)
+        {
+            // As above.
+        }
+    }
+
+    /// <summary>fsync on the folder (POSIX only; Windows has no equivalent for folders).</summary>
+    private static void FlushFolder(string folder)
+    {
+        if (OperatingSystem.IsWindows())
+        {
+            return;
+        }
+        int fd = NativeMethods.open(folder, 0 /* O_RDONLY */);
+        if (fd < 0)
+        {
+            return;
+        }
+        try
+        {
+            if (NativeMethods.fsync(fd) != 0)
+            {
+                throw new IOException($"fsync of folder '{folder}' failed (errno {Marshal.GetLastPInvokeError()})");
+            }
+        }
+        finally
+        {
             _ = NativeMethods.close(fd);
         }
     }
 
     private static class NativeMethods
     {
-        [DllImport("libc", SetLastError = true)]
-#pragma warning disable CA2101, CA5392, SYSLIB1054 // plain libc calls; ASCII-safe paths are marshalled as UTF-8 below
-        public static extern int open([MarshalAs(UnmanagedType.LPUTF8Str)] string path, int flags);
+#pragma warning disable SYSLIB1054, CA5392, IDE1006 // plain libc calls, resolved from the C library only
+        [DllImport("libc", SetLastError = true, CharSet = CharSet.Ansi, BestFitMapping = false, ThrowOnUnmappableChar = true)]
+        internal static extern int open([MarshalAs(UnmanagedType.LPUTF8Str)] string path, int flags);
 
         [DllImport("libc", SetLastError = true)]
-        public static extern int fsync(int fd);
+        internal static extern int fsync(int fd);
 
         [DllImport("libc", SetLastError = true)]
-        public static extern int close(int fd);
-#pragma warning restore CA2101, CA5392, SYSLIB1054
+        internal static extern int close(int fd);
+#pragma warning restore SYSLIB1054, CA5392, IDE1006
     }
 }

@@ -24,7 +24,13 @@ public static class PairPlanner
     {
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(images);
-        return settings.Mode switch
+        var mode = settings.Mode;
+        if (mode == PairingMode.Auto)
+        {
+            var grid = new Regex(settings.GridPattern, RegexOptions.CultureInvariant | RegexOptions.IgnoreCase, TimeSpan.FromSeconds(1));
+            mode = images.Count > 1 && images.All(i => grid.IsMatch(Path.GetFileNameWithoutExtension(i.Key))) ? PairingMode.Grid : PairingMode.Sequence;
+        }
+        return mode switch
         {
             PairingMode.Sequence => Sequence(settings, images),
             PairingMode.Grid => Grid(settings, images),

@@ -5,6 +5,8 @@ namespace Seamwright.Pipeline.Settings;
 /// <summary>How images of a set are paired for estimation.</summary>
 public enum PairingMode
 {
+    /// <summary><c>Grid</c> when every image name in the set matches the grid pattern, otherwise <c>Sequence</c>.</summary>
+    Auto,
     /// <summary>Neighbours in name or capture-time order, within a span.</summary>
     Sequence,
     /// <summary>Row and column read from the file name; 4-neighbours (and diagonals by setting).</summary>
@@ -27,7 +29,7 @@ public enum SequenceOrder
 /// <summary>Pair planning settings of a profile.</summary>
 public sealed class PairingSettings
 {
-    public PairingMode Mode { get; set; } = PairingMode.Sequence;
+    public PairingMode Mode { get; set; } = PairingMode.Auto;
     public SequenceOrder Order { get; set; } = SequenceOrder.Name;
     /// <summary>Each image is paired with the next <c>NeighbourSpan</c> images (at least 2, so loops exist).</summary>
     public int NeighbourSpan { get; set; } = 2;
@@ -71,7 +73,7 @@ public sealed class FeatureSettings
     /// <summary>Working resolution in megapixels; larger images are downscaled for detection.</summary>
     public double WorkingMegapixels { get; set; } = 2.0;
     /// <summary>Most keypoints kept per image.</summary>
-    public int MaxKeypoints { get; set; } = 2000;
+    public int MaxKeypoints { get; set; } = 4000;
     /// <summary>Regions excluded from detection (rulers, colour targets, timestamps).</summary>
     public List<MaskRect> Masks { get; set; } = [];
 }
@@ -88,8 +90,10 @@ public sealed class EstimationSettings
     public double RatioTest { get; set; } = 0.8;
     /// <summary>Run the deterministic consensus refinement after sampling.</summary>
     public bool RefineConsensus { get; set; } = true;
-    /// <summary>Fewest inliers for an accepted pair.</summary>
-    public int MinInliers { get; set; } = 15;
+    /// <summary>Confidence of the sampling termination bound (the standard RANSAC stopping rule).</summary>
+    public double Confidence { get; set; } = 0.99;
+    /// <summary>Most sampling iterations per pair (a work cap, never a time cap).</summary>
+    public int MaxIterations { get; set; } = 10000;
 }
 
 /// <summary>A named group of settings applied to the sets of a watched root (or to sets matching a rule).</summary>

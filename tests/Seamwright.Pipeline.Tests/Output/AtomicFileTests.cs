@@ -1,44 +1,43 @@
 using Seamwright.Pipeline.Output;
-using Seamwright.Tests.Support;
 
 namespace Seamwright.Pipeline.Tests.Output;
 
-public class AtomicFileTests
+public sealed class AtomicFileTests : IDisposable
 {
+    private readonly TempFolder _folder = new();
+
     [Fact]
-    public void WriteAllBytes_OverExistingFile_ReplacesContentAndLeavesNoTemporary()
+    public void WriteAllBytes_NewAndExistingTarget_ReplacesContentWithoutLeftovers()
     {
-        using var dir = new ScratchFolder();
-        string path = dir.Sub("a/b/out.json");
-        AtomicFile.WriteAllBytes(path, "old"u8);
-        AtomicFile.WriteAllBytes(path, "new content"u8);
-        Assert.Equal("new content", File.ReadAllText(path));
-        Assert.Single(Directory.GetFiles(Path.GetDirectoryName(path)!));
+        string path = _folder.File("sidecar.json");
+        AtomicFile.WriteAllBytes(path, "first"u8);
+        Assert.Equal("first", File.ReadAllText(path));
+        AtomicFile.WriteAllText(path, "second");
+        Assert.Equal("second", File.ReadAllText(path));
+        Assert.Equal(["sidecar.json"], Directory.GetFiles(_folder.Path).Select(Path.GetFileName));
     }
 
     [Fact]
-    public void Write_WriterThrows_TargetUnchangedAndTemporaryRemoved()
+    public void Write_CallbackThrows_KeepsOldContentAndRemovesTemporary()
     {
-        using var dir = new ScratchFolder();
-        string path = dir.Sub("out.json");
-        AtomicFile.WriteAllBytes(path, "kept"u8);
-        Assert.Throws<InvalidOperationException>(() => AtomicFile.Write(path, s =>
+        string path = _folder.File("manifest.json");
+        AtomicFile.WriteAllText(path, "old");
+        Assert.Throws<InvalidOperationException>(() => AtomicFile.Write(path, stream =>
         {
-            s.Write("partial"u8);
-            throw new InvalidOperationException("writer failed");
+            stream.Write("half-written"u8);
+            throw new InvalidOperationException("simulated failure");
         }));
-        Assert.Equal("kept", File.ReadAllText(path));
-        Assert.Single(Directory.GetFiles(dir.Path));
+        Assert.Equal("old", File.ReadAllText(path));
+        Assert.Single(Directory.GetFiles(_folder.Path));
     }
 
     [Fact]
-    public void SweepTemporaries_LeftoverFromCrash_Removed()
+    public void IsTemporary_TemporaryAndNormalNames_AreTold()
     {
-        using var dir = new ScratchFolder();
-        Directory.CreateDirectory(dir.Sub("x"));
-        File.WriteAllText(dir.Sub("x/.a.json.1234abcd" + AtomicFile.TempSuffix), "torn");
-        File.WriteAllText(dir.Sub("x/a.json"), "whole");
-        Assert.Equal(1, AtomicFile.SweepTemporaries(dir.Path));
-        Assert.Equal(new[] { dir.Sub("x/a.json") }, Directory.GetFiles(dir.Sub("x")));
+        Assert.True(AtomicFile.IsTemporary("/x/.a.json.123.abc" + AtomicFile.TemporarySuffix));
+        Assert.False(AtomicFile.IsTemporary("/x/a.json"));
+        Assert.False(AtomicFile.IsTemporary("/x/a" + AtomicFile.TemporarySuffix));
     }
+
+    public void Dispose() => _folder.Dispose();
 }
