@@ -1,5 +1,4 @@
 using System.Text;
-using System.Text.Json;
 
 namespace Seamwright.Pipeline.Output;
 
@@ -30,7 +29,7 @@ public sealed class ConfidenceLog
         var sb = new StringBuilder();
         foreach (var r in records)
         {
-            sb.Append(JsonSerializer.Serialize(r, CompactJson.Default.ConfidenceRecord)).Append('\n');
+            sb.Append(OutputJson.ConfidenceLine(r)).Append('\n');
         }
         if (sb.Length == 0)
         {
@@ -91,7 +90,7 @@ public sealed class ConfidenceLog
         {
             if (line.Length > 0)
             {
-                list.Add(JsonSerializer.Deserialize(line, CompactJson.Default.ConfidenceRecord)!);
+                list.Add(OutputJson.ReadConfidenceLine(line));
             }
         }
         return list;
