@@ -64,7 +64,11 @@ internal static class WatchCommand
         var readerOptions = new ConfigurationReaderOptions(
             typeof(ConsoleLoggerConfigurationExtensions).Assembly, typeof(FileLoggerConfigurationExtensions).Assembly,
             typeof(Serilog.Formatting.Compact.CompactJsonFormatter).Assembly);
-        Log.Logger = new LoggerConfiguration().ReadFrom.Configuration(builder.Configuration, readerOptions).CreateLogger();
+        // A settings file without a Serilog section still logs to the console.
+        Log.Logger = builder.Configuration.GetSection("Serilog").Exists()
+            ? new LoggerConfiguration().ReadFrom.Configuration(builder.Configuration, readerOptions).CreateLogger()
+            : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
+                .WriteTo.Console().CreateLogger();
         builder.Services.AddSerilog(Log.Logger, dispose: false);
 
         var sessions = new List<RootSession>();
