@@ -26,6 +26,21 @@ public sealed record ConsensusRefinerOptions
     /// than this fraction between two linear programs.
     /// </summary>
     public double MinRelativeDecrease { get; init; } = 1e-6;
+
+    /// <summary>
+    /// Bisection passes: a pass that raised the consensus is followed by a fresh pass from the new
+    /// model, because targets that failed from the old model may be reachable from the new one.
+    /// </summary>
+    public int MaxPasses { get; init; } = 1;
+
+    /// <summary>
+    /// When the search for a target fails from the best model, search again from the model where
+    /// the previous failed target's search ended: a second, different start that escapes some local
+    /// minima (measured on small hard problems: 95 % to 98 % of the exact optimum on average, for
+    /// about 60 % more linear programs on the homogr set). A departure from Cai et al., who start every search
+    /// from the best model.
+    /// </summary>
+    public bool RetryFromFailedModel { get; init; } = true;
 }
 
 /// <summary>Outcome of one refinement.</summary>
@@ -87,6 +102,7 @@ public static class ConsensusRefiner
         private readonly double[] _costs = new double[rows.Count];
         private readonly int[] _order = new int[rows.Count];
         private readonly double[] _theta = new double[rows.ParameterCount];
+        private double[]? _failedTheta;
 
         public Transform2D Best { get; private set; } = initial;
 
@@ -98,36 +114,57 @@ public static class ConsensusRefiner
 
         public string Run()
         {
-            int reachable = BestConsensus;
-            int unreachable = rows.Count + 1;
-            while (unreachable - reachable > 1)
+            string closed = "";
+            for (int pass = 1; pass <= options.MaxPasses; pass++)
             {
-                if (LinearPrograms >= options.MaxLinearPrograms)
+                int start = BestConsensus;
+                int reachable = BestConsensus;
+                int unreachable = rows.Count + 1;
+                while (unreachable - reachable > 1)
                 {
-                    return $"linear program cap {options.MaxLinearPrograms} reached with targets {reachable + 1}-{unreachable - 1} untried";
+                    if (LinearPrograms >= options.MaxLinearPrograms)
+                    {
+                        return $"linear program cap {options.MaxLinearPrograms} reached in pass {pass} with targets {reachable + 1}-{unreachable - 1} untried";
+                    }
+                    int target = reachable + (unreachable - reachable) / 2;
+                    double[]? previousFailure = _failedTheta is null ? null : (double[])_failedTheta.Clone();
+                    bool reached = TryReach(target, null);
+                    if (!reached && previousFailure is not null && options.RetryFromFailedModel)
+                    {
+                        reached = TryReach(target, previousFailure);
+                    }
+                    if (reached && BestConsensus >= target)
+                    {
+                        reachable = BestConsensus;
+                        unreachable = Math.Max(unreachable, BestConsensus + 1);
+                    }
+                    else
+                    {
+                        reachable = Math.Max(reachable, BestConsensus);
+                        unreachable = Math.Max(target, reachable + 1);
+                    }
                 }
-                int target = reachable + (unreachable - reachable) / 2;
-                bool reached = TryReach(target);
-                if (reached && BestConsensus >= target)
+                closed = $"bisection pass {pass} closed: consensus {BestConsensus} reached, {unreachable} not";
+                if (BestConsensus == start || BestConsensus == rows.Count)
                 {
-                    reachable = BestConsensus;
-                    unreachable = Math.Max(unreachable, BestConsensus + 1);
-                }
-                else
-                {
-                    reachable = Math.Max(reachable, BestConsensus);
-                    unreachable = Math.Max(target, reachable + 1);
+                    return BestConsensus > _before ? closed : $"bisection closed: no target above {_before} reached";
                 }
             }
-            return BestConsensus > _before
-                ? $"bisection closed: consensus {BestConsensus} reached, {unreachable} not"
-                : $"bisection closed: no target above {_before} reached";
+            return closed + $" (pass cap {options.MaxPasses})";
         }
 
         /// <summary>The alternating search for target d, started from the best model.</summary>
-        private bool TryReach(int target)
+        private bool TryReach(int target, double[]? start)
         {
-            RankByPixelError();
+            if (start is null)
+            {
+                RankByPixelError();
+            }
+            else
+            {
+                start.CopyTo(_theta, 0);
+                RankByCost();
+            }
             double previous = double.PositiveInfinity;
             while (LinearPrograms < options.MaxLinearPrograms)
             {
@@ -159,6 +196,7 @@ public static class ConsensusRefiner
                 }
                 if (!(sum < previous * (1 - options.MinRelativeDecrease)))
                 {
+                    _failedTheta = (double[])_theta.Clone();
                     return false;
                 }
                 previous = sum;
