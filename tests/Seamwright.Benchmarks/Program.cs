@@ -1,8 +1,17 @@
+using System.Globalization;
 using BenchmarkDotNet.Running;
 
 namespace Seamwright.Benchmarks;
 
 internal static class Program
 {
-    public static void Main(string[] args) => BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
+    public static int Main(string[] args)
+    {
+        if (args.Length > 0 && args[0] == "eval-refiner")
+        {
+            return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3);
+        }
+        BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
+        return 0;
+    }
 }

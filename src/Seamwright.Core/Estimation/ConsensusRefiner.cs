@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using Seamwright.Core.Geometry;
 
 namespace Seamwright.Core.Estimation;
@@ -49,7 +50,17 @@ public sealed record ConsensusRefinerOptions
 /// <param name="ConsensusAfter">True round-disc consensus of the returned model (never lower).</param>
 /// <param name="LinearPrograms">Linear programs solved.</param>
 /// <param name="Termination">Why it stopped, in words.</param>
-public sealed record ConsensusRefinement(Transform2D Transform, int ConsensusBefore, int ConsensusAfter, int LinearPrograms, string Termination);
+public sealed record ConsensusRefinement(Transform2D Transform, int ConsensusBefore, int ConsensusAfter, int LinearPrograms, string Termination)
+{
+    /// <summary>Wall-clock milliseconds spent building the LP model (diagnostics only, never compared).</summary>
+    public double BuildMilliseconds { get; init; }
+
+    /// <summary>Wall-clock milliseconds spent inside LP solves (diagnostics only, never compared).</summary>
+    public double SolveMilliseconds { get; init; }
+
+    /// <summary>Simplex iterations summed over the LP solves (diagnostics only).</summary>
+    public long SimplexIterations { get; init; }
+}
 
 /// <summary>
 /// Deterministic consensus maximisation by biconvex programming (Cai, Chin, Le, Suter, ECCV 2018),
@@ -86,11 +97,18 @@ public static class ConsensusRefiner
                 options.MaxLinearPrograms == 0 ? "linear program cap is zero" : "too few matches to refine");
         }
 
+        long start = Stopwatch.GetTimestamp();
         var rows = new PolygonInequalities(matches, model, threshold, options.PolygonSides, options.Tau);
         using var lp = new ConsensusLinearProgram(rows, options.CheiralityCost);
+        double build = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         var search = new BisectionState(matches, rows, lp, options, threshold, initial, before);
         string termination = search.Run();
-        return new ConsensusRefinement(search.Best, before, search.BestConsensus, search.LinearPrograms, termination);
+        return new ConsensusRefinement(search.Best, before, search.BestConsensus, search.LinearPrograms, termination)
+        {
+            BuildMilliseconds = build,
+            SolveMilliseconds = lp.SolveMilliseconds,
+            SimplexIterations = lp.SimplexIterations,
+        };
     }
 
     /// <summary>The mutable state of one refinement: the best model, the bounds and the LP count.</summary>
@@ -102,6 +120,7 @@ public static class ConsensusRefiner
         private readonly double[] _costs = new double[rows.Count];
         private readonly int[] _order = new int[rows.Count];
         private readonly double[] _theta = new double[rows.ParameterCount];
+        private readonly bool[] _lastActive = new bool[rows.Count];
         private double[]? _failedTheta;
 
         public Transform2D Best { get; private set; } = initial;
@@ -168,6 +187,11 @@ public static class ConsensusRefiner
             double previous = double.PositiveInfinity;
             while (LinearPrograms < options.MaxLinearPrograms)
             {
+                Array.Clear(_lastActive);
+                foreach (int i in _order.AsSpan(0, target))
+                {
+                    _lastActive[i] = true;
+                }
                 double value = lp.Solve(_order.AsSpan(0, target), _theta);
                 LinearPrograms++;
                 if (double.IsNaN(value))
@@ -190,11 +214,15 @@ public static class ConsensusRefiner
                 }
                 RankByCost();
                 double sum = 0;
+                bool sameSet = true;
                 for (int r = 0; r < target; r++)
                 {
                     sum += _costs[_order[r]];
+                    sameSet &= _lastActive[_order[r]];
                 }
-                if (!(sum < previous * (1 - options.MinRelativeDecrease)))
+                // An unchanged active set means the next LP is the one just solved: its optimum
+                // cannot be lower, so the search has failed without solving it again.
+                if (sameSet || !(sum < previous * (1 - options.MinRelativeDecrease)))
                 {
                     _failedTheta = (double[])_theta.Clone();
                     return false;
