@@ -14,6 +14,7 @@ internal static class CommandLine
         return args[0] switch
         {
             "version" or "--version" => Version(),
+            "make-demo" => Commands.MakeDemoCommand.Run(rest),
             _ => Unknown(args[0]),
         };
     }
@@ -24,6 +25,7 @@ internal static class CommandLine
 
         Commands:
           version                     print the tool and algorithm versions
+          make-demo DIR               write the demo sets (images + _truth.json) into DIR
         """;
 
     private static int Version()
