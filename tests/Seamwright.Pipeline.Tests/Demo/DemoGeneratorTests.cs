@@ -25,9 +25,49 @@ public sealed class DemoGeneratorTests : IDisposable
             string relative = Path.GetRelativePath(_folder.Path, path);
             string committed = Path.Combine(SampleFolder, relative);
             Assert.True(File.Exists(committed), $"{relative} is missing from sample-folder; run: seamwright make-demo sample-folder");
-            Assert.True(File.ReadAllBytes(committed).AsSpan().SequenceEqual(File.ReadAllBytes(path)),
-                $"{relative} differs from sample-folder; regenerate with: seamwright make-demo sample-folder");
+            bool same = File.ReadAllBytes(committed).AsSpan().SequenceEqual(File.ReadAllBytes(path));
+            if (MadeOnThisPlatform)
+            {
+                Assert.True(same, $"{relative} differs from sample-folder; regenerate with: seamwright make-demo sample-folder");
+            }
+            else if (!same)
+            {
+                // Other platforms may differ in the last bit of sin/cos/exp or in SIMD paths of the
+                // JPEG encoder; the content must still be the same.
+                AssertNearlySame(committed, path);
+            }
         }
+    }
+
+    /// <summary>The committed files were made on Linux x64; byte identity is promised for the same platform and build.</summary>
+    private static bool MadeOnThisPlatform =>
+        OperatingSystem.IsLinux() && System.Runtime.InteropServices.RuntimeInformation.OSArchitecture == System.Runtime.InteropServices.Architecture.X64;
+
+    private static void AssertNearlySame(string committed, string regenerated)
+    {
+        if (committed.EndsWith(".json", StringComparison.Ordinal))
+        {
+            var a = DemoTruth.Read(committed);
+            var b = DemoTruth.Read(regenerated);
+            foreach (var (name, t) in a.ToReference)
+            {
+                Assert.True(Transform2D.MaxPointDistance(t, b.ToReference[name], Transform2D.Corners(DemoGenerator.ImageWidth, DemoGenerator.ImageHeight)) < 1e-6, name);
+            }
+            return;
+        }
+        var loader = new ImageLoader();
+        var x = loader.Load(committed).Image.Pixels;
+        var y = loader.Load(regenerated).Image.Pixels;
+        Assert.Equal(x.Length, y.Length);
+        int worst = 0;
+        long sum = 0;
+        for (int i = 0; i < x.Length; i++)
+        {
+            int d = Math.Abs(x[i] - y[i]);
+            worst = Math.Max(worst, d);
+            sum += d;
+        }
+        Assert.True(worst <= 3 && sum < x.Length / 20, $"{regenerated}: worst {worst}, mean {(double)sum / x.Length}");
     }
 
     [Fact]
