@@ -289,8 +289,10 @@ public static class SetAligner
                     {
                         continue;
                     }
-                    var (cx, cy) = Anchor(v, allowed);
-                    toReference[v] = TransformOps.Orient(toReference[u] * graph.Step(l, v), cx, cy);
+                    // Scaled by a positive factor only: the sign of w at the image's tie points then
+                    // says whether they land in front of the reference plane or behind it.
+                    var chained = toReference[u] * graph.Step(l, v);
+                    toReference[v] = chained.Scale(1 / Math.Max(TransformOps.MaxAbs(chained), 1e-300));
                     queue.Enqueue(v);
                 }
             }
