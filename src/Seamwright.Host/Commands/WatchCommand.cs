@@ -1,6 +1,7 @@
 using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Options;
 using Microsoft.Extensions.Primitives;
 using Seamwright.Host.Configuration;
 using Seamwright.Host.Service;
@@ -54,6 +55,10 @@ internal static class WatchCommand
             ContentRootPath = AppContext.BaseDirectory,
         });
         builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
+        // Bound and validated again by the host at start (IValidateOptions + ValidateOnStart); the
+        // same validator already ran above so that a bad setting exits 2 before anything starts.
+        builder.Services.AddSingleton<IValidateOptions<SeamwrightOptions>, SettingsValidator>();
+        builder.Services.AddOptions<SeamwrightOptions>().Bind(builder.Configuration.GetSection(SeamwrightOptions.SectionName)).ValidateOnStart();
         builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
         builder.Services.AddSystemd();
         builder.Services.Configure<HostOptions>(o =>
@@ -100,6 +105,11 @@ internal static class WatchCommand
             }
             Log.Information("Stopped");
             return ExitCodes.Ok;
+        }
+        catch (OptionsValidationException e)
+        {
+            System.Console.Error.WriteLine("seamwright: invalid settings: " + string.Join("; ", e.Failures));
+            return ExitCodes.BadArguments;
         }
         catch (Exception e) when (e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
         {
