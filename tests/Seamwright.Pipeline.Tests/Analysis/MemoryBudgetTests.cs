@@ -5,17 +5,18 @@ namespace Seamwright.Pipeline.Tests.Analysis;
 public class MemoryBudgetTests
 {
     [Fact]
-    public void Reserve_BeyondCapacity_WaitsUntilMemoryIsReleased()
+    public async Task Reserve_BeyondCapacity_WaitsUntilMemoryIsReleased()
     {
         var budget = new MemoryBudget(100);
         var first = budget.Reserve(70, CancellationToken.None);
         var second = Task.Run(() => budget.Reserve(50, CancellationToken.None));
-        Assert.False(second.Wait(300)); // 70 + 50 > 100: must wait (a slow machine can only make this pass, never fail wrongly)
+        await Task.Delay(300);
+        Assert.False(second.IsCompleted); // 70 + 50 > 100: must wait (a slow machine can only make this pass, never fail wrongly)
         Assert.Equal(70, budget.Used);
         first.Dispose();
-        Assert.True(second.Wait(TimeSpan.FromSeconds(30)));
+        var reservation = await second.WaitAsync(TimeSpan.FromSeconds(30));
         Assert.Equal(50, budget.Used);
-        second.Result.Dispose();
+        reservation.Dispose();
         Assert.Equal(0, budget.Used);
     }
 
