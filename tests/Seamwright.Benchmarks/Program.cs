@@ -11,6 +11,10 @@ internal static class Program
         {
             return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3);
         }
+        if (args.Length > 0 && args[0] == "pairs")
+        {
+            return PairComparisonReport.Run(args[1..]);
+        }
         BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
         return 0;
     }

@@ -13,7 +13,7 @@ public class ConsensusRefinerTests
     [MemberData(nameof(Models))]
     public void Refine_ShiftedTrueModel_RecoversInliersAndStaysInFamily(MotionModel model)
     {
-        var rng = new SplitMix64(11 + (ulong)model);
+        var rng = new TestRandom(11 + (ulong)model);
         var truth = HardConsensusProblems.TrueModel(model, rng);
         var matches = Clean(rng, truth, inliers: 40, gross: 20, noise: 0.5);
         var initial = Transform2D.Translation(2.5, -2) * truth;
@@ -79,7 +79,7 @@ public class ConsensusRefinerTests
     [Fact]
     public void Refine_EveryMatchAlreadyInlier_SolvesNoLinearProgram()
     {
-        var rng = new SplitMix64(5);
+        var rng = new TestRandom(5);
         var truth = HardConsensusProblems.TrueModel(MotionModel.Homography, rng);
         var matches = Clean(rng, truth, inliers: 30, gross: 0, noise: 0.2);
 
@@ -97,7 +97,7 @@ public class ConsensusRefinerTests
             ConsensusRefiner.Refine(matches, Transform2D.Identity, MotionModel.Affine, Threshold, new ConsensusRefinerOptions { PolygonSides = 6 }));
     }
 
-    internal static Correspondence[] Clean(SplitMix64 rng, Transform2D truth, int inliers, int gross, double noise)
+    internal static Correspondence[] Clean(TestRandom rng, Transform2D truth, int inliers, int gross, double noise)
     {
         var list = new List<Correspondence>();
         for (int i = 0; i < inliers; i++)

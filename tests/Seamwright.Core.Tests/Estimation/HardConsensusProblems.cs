@@ -13,7 +13,7 @@ internal static class HardConsensusProblems
     public const double Width = 640, Height = 480;
 
     /// <summary>A model of the family, mildly rotated, scaled and (homography) tilted, drawn from the seed.</summary>
-    public static Transform2D TrueModel(MotionModel model, SplitMix64 rng)
+    public static Transform2D TrueModel(MotionModel model, TestRandom rng)
     {
         double angle = (rng.NextDouble() - 0.5) * 0.3;
         double scale = model == MotionModel.Translation ? 1 : 0.9 + 0.2 * rng.NextDouble();
@@ -41,7 +41,7 @@ internal static class HardConsensusProblems
     /// </summary>
     public static Correspondence[] Generate(MotionModel model, ulong seed, int inliers, int decoys, int gross, double noise, double decoyShift)
     {
-        var rng = new SplitMix64(seed);
+        var rng = new TestRandom(seed);
         var truth = TrueModel(model, rng);
         double a = rng.NextDouble() * 2 * Math.PI;
         var decoy = Transform2D.Translation(decoyShift * Math.Cos(a), decoyShift * Math.Sin(a)) * truth;
@@ -61,7 +61,7 @@ internal static class HardConsensusProblems
         return [.. list];
     }
 
-    private static void Add(List<Correspondence> list, SplitMix64 rng, Transform2D h, int count, double noise)
+    private static void Add(List<Correspondence> list, TestRandom rng, Transform2D h, int count, double noise)
     {
         for (int i = 0; i < count; i++)
         {

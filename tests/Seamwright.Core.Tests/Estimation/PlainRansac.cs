@@ -24,7 +24,7 @@ internal static class PlainRansac
         ReadOnlySpan<Correspondence> matches, MotionModel model, double threshold, ulong seed, int maxIterations, double confidence = 0.99)
     {
         int s = SampleSize(model);
-        var rng = new SplitMix64(seed);
+        var rng = new TestRandom(seed);
         var (n1, n2) = HartleyNormalization.ForMatches(matches);
         var best = Transform2D.Identity;
         int bestCount = -1;
@@ -143,8 +143,8 @@ internal static class PlainRansac
     }
 }
 
-/// <summary>SplitMix64 (Steele, Lea, Flood, OOPSLA 2014): a tiny seeded generator for tests, never System.Random.</summary>
-internal sealed class SplitMix64(ulong seed)
+/// <summary>splitmix64 (Steele, Lea, Flood, OOPSLA 2014): a tiny seeded generator for tests, never System.Random.</summary>
+internal sealed class TestRandom(ulong seed)
 {
     private ulong _state = seed;
 
