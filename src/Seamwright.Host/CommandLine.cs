@@ -14,6 +14,8 @@ internal static class CommandLine
         return args[0] switch
         {
             "version" or "--version" => Version(),
+            // Hidden: a decode worker process started by the supervisor (Supervision/WorkerPool.cs).
+            "worker" => Commands.WorkerCommand.Run(rest),
             _ => Unknown(args[0]),
         };
     }
