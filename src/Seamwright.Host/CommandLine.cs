@@ -14,6 +14,7 @@ internal static class CommandLine
         return args[0] switch
         {
             "version" or "--version" => Version(),
+            "estimate" => Commands.EstimateCommand.Run(rest, Console.Out, Console.Error),
             // Hidden: a decode worker process started by the supervisor (Supervision/WorkerPool.cs).
             "worker" => Commands.WorkerCommand.Run(rest),
             _ => Unknown(args[0]),
@@ -26,6 +27,10 @@ internal static class CommandLine
 
         Commands:
           version                     print the tool and algorithm versions
+          estimate FILE [options]     one pairwise transform from a match file (x1,y1,x2,y2 per line);
+                                      options: --model homography|affine|similarity|translation,
+                                      --threshold PX, --seed N, --no-refine, --size-a WxH,
+                                      --size-b WxH, --json
         """;
 
     private static int Version()

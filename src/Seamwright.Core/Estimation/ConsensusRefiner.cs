@@ -10,6 +10,22 @@ public sealed record ConsensusRefinerOptions
 
     /// <summary>Cap on the number of linear programs per estimate (a work cap, never a time cap).</summary>
     public int MaxLinearPrograms { get; init; } = 200;
+
+    /// <summary>
+    /// Lower bound on w at active data, in Hartley-normalised coordinates where w = 1 at the
+    /// centroid of the first points. 1e-3 keeps active points clearly in front without excluding
+    /// any realistic overlap (a model with w near 0 inside the point cloud is degenerate anyway).
+    /// </summary>
+    public double Tau { get; init; } = 1e-3;
+
+    /// <summary>Objective cost per unit of w below tau for an active datum (homography only); large so the LP keeps w &gt;= tau.</summary>
+    public double CheiralityCost { get; init; } = 1e3;
+
+    /// <summary>
+    /// The alternating search for one target stops as failed when the slack sum falls by less
+    /// than this fraction between two linear programs.
+    /// </summary>
+    public double MinRelativeDecrease { get; init; } = 1e-6;
 }
 
 /// <summary>Outcome of one refinement.</summary>
@@ -25,23 +41,166 @@ public sealed record ConsensusRefinement(Transform2D Transform, int ConsensusBef
 /// refining a model found by sampling. Contract: deterministic, and never returns a model with a
 /// lower forward-transfer consensus at <c>threshold</c> than <c>initial</c>.
 /// </summary>
+/// <remarks>
+/// Bisection on the target consensus d between the best consensus found (reachable) and the
+/// smallest target known to fail. For one d, an alternating search: rank the data by the slack
+/// the current model needs, keep the d smallest, solve the LP minimising their slack sum, and
+/// repeat until the sum is zero (d reached) or stops falling (d failed). Every LP model is scored
+/// by its true round-disc consensus and kept only when that is higher than the best so far.
+/// </remarks>
 public static class ConsensusRefiner
 {
     public static ConsensusRefinement Refine(
         ReadOnlySpan<Correspondence> matches, Transform2D initial, MotionModel model, double threshold, ConsensusRefinerOptions options)
     {
-        // Placeholder until the LP refinement lands: returns the initial model unchanged.
-        int c = 0;
-        foreach (var m in matches)
+        ArgumentNullException.ThrowIfNull(options);
+        if (options.MaxLinearPrograms < 0)
         {
-            if (initial.W(m.X1, m.Y1) > 0 && initial.TryApply(m.X1, m.Y1, out double u, out double v)
-                && (u - m.X2) * (u - m.X2) + (v - m.Y2) * (v - m.Y2) <= threshold * threshold)
-            {
-                c++;
-            }
+            throw new ArgumentOutOfRangeException(nameof(options), "MaxLinearPrograms must not be negative.");
         }
-        _ = model;
-        _ = options;
-        return new ConsensusRefinement(initial, c, c, 0, "not yet implemented");
+        int before = DiscConsensus.Count(matches, initial, threshold);
+        int n = matches.Length;
+        int minimum = PolygonInequalities.ParametersOf(model) / 2;
+        if (n <= before)
+        {
+            return new ConsensusRefinement(initial, before, before, 0, "every match is already an inlier");
+        }
+        if (n < minimum + 1 || options.MaxLinearPrograms == 0)
+        {
+            return new ConsensusRefinement(initial, before, before, 0,
+                options.MaxLinearPrograms == 0 ? "linear program cap is zero" : "too few matches to refine");
+        }
+
+        var rows = new PolygonInequalities(matches, model, threshold, options.PolygonSides, options.Tau);
+        using var lp = new ConsensusLinearProgram(rows, options.CheiralityCost);
+        var search = new BisectionState(matches, rows, lp, options, threshold, initial, before);
+        string termination = search.Run();
+        return new ConsensusRefinement(search.Best, before, search.BestConsensus, search.LinearPrograms, termination);
+    }
+
+    /// <summary>The mutable state of one refinement: the best model, the bounds and the LP count.</summary>
+    private sealed class BisectionState(
+        ReadOnlySpan<Correspondence> matches, PolygonInequalities rows, ConsensusLinearProgram lp,
+        ConsensusRefinerOptions options, double threshold, Transform2D initial, int before)
+    {
+        private readonly Correspondence[] _matches = matches.ToArray();
+        private readonly double[] _costs = new double[rows.Count];
+        private readonly int[] _order = new int[rows.Count];
+        private readonly double[] _theta = new double[rows.ParameterCount];
+
+        public Transform2D Best { get; private set; } = initial;
+
+        private readonly int _before = before;
+
+        public int BestConsensus { get; private set; } = before;
+
+        public int LinearPrograms { get; private set; }
+
+        public string Run()
+        {
+            int reachable = BestConsensus;
+            int unreachable = rows.Count + 1;
+            while (unreachable - reachable > 1)
+            {
+                if (LinearPrograms >= options.MaxLinearPrograms)
+                {
+                    return $"linear program cap {options.MaxLinearPrograms} reached with targets {reachable + 1}-{unreachable - 1} untried";
+                }
+                int target = reachable + (unreachable - reachable) / 2;
+                bool reached = TryReach(target);
+                if (reached && BestConsensus >= target)
+                {
+                    reachable = BestConsensus;
+                    unreachable = Math.Max(unreachable, BestConsensus + 1);
+                }
+                else
+                {
+                    reachable = Math.Max(reachable, BestConsensus);
+                    unreachable = Math.Max(target, reachable + 1);
+                }
+            }
+            return BestConsensus > _before
+                ? $"bisection closed: consensus {BestConsensus} reached, {unreachable} not"
+                : $"bisection closed: no target above {_before} reached";
+        }
+
+        /// <summary>The alternating search for target d, started from the best model.</summary>
+        private bool TryReach(int target)
+        {
+            RankByPixelError();
+            double previous = double.PositiveInfinity;
+            while (LinearPrograms < options.MaxLinearPrograms)
+            {
+                double value = lp.Solve(_order.AsSpan(0, target), _theta);
+                LinearPrograms++;
+                if (double.IsNaN(value))
+                {
+                    return false;
+                }
+                var candidate = rows.ToPixel(_theta);
+                if (candidate.IsFinite)
+                {
+                    int c = DiscConsensus.Count(_matches, candidate, threshold);
+                    if (c > BestConsensus)
+                    {
+                        Best = candidate;
+                        BestConsensus = c;
+                    }
+                }
+                if (value <= ZeroSlack)
+                {
+                    return true;
+                }
+                RankByCost();
+                double sum = 0;
+                for (int r = 0; r < target; r++)
+                {
+                    sum += _costs[_order[r]];
+                }
+                if (!(sum < previous * (1 - options.MinRelativeDecrease)))
+                {
+                    return false;
+                }
+                previous = sum;
+            }
+            return false;
+        }
+
+        /// <summary>Slack sums at or below this (normalised units) count as zero: far below any pixel-level effect.</summary>
+        private double ZeroSlack => 1e-9 * rows.Radius;
+
+        private void RankByPixelError()
+        {
+            var best = Best;
+            for (int i = 0; i < _costs.Length; i++)
+            {
+                _costs[i] = DiscConsensus.SquaredError(_matches[i], best);
+            }
+            SortOrder();
+        }
+
+        private void RankByCost()
+        {
+            for (int i = 0; i < _costs.Length; i++)
+            {
+                _costs[i] = rows.Cost(i, _theta, options.CheiralityCost);
+            }
+            SortOrder();
+        }
+
+        /// <summary>Orders data by cost, ties by index, so the active set is deterministic.</summary>
+        private void SortOrder()
+        {
+            for (int i = 0; i < _order.Length; i++)
+            {
+                _order[i] = i;
+            }
+            var costs = _costs;
+            Array.Sort(_order, (a, b) =>
+            {
+                int byCost = costs[a].CompareTo(costs[b]);
+                return byCost != 0 ? byCost : a.CompareTo(b);
+            });
+        }
     }
 }

@@ -1,0 +1,111 @@
+using System.Runtime.InteropServices;
+
+namespace Seamwright.Pipeline.Output;
+
+/// <summary>
+/// Atomic file replacement: the content goes to a temporary file in the target's folder, is
+/// flushed to disk (<c>Flush(true)</c>), and is renamed over the target; on Linux and macOS the
+/// folder is then flushed too so the rename itself survives a power cut. A reader sees the old
+/// file or the new one, never a mix. Temporary names start with '.' and end with
+/// <see cref="TemporarySuffix"/>, so scanners can skip them and clean-up can find them. After a
+/// failed flush the temporary file is deleted and the error thrown: the caller rewrites the whole
+/// file from its source (retrying a failed flush can report success for lost data).
+/// </summary>
+public static class AtomicFile
+{
+    /// <summary>Suffix of temporary files written by this class.</summary>
+    public const string TemporarySuffix = ".seamtmp";
+
+    /// <summary>True for a name this class uses for temporary files.</summary>
+    public static bool IsTemporary(string path) =>
+        Path.GetFileName(path).StartsWith('.') && path.EndsWith(TemporarySuffix, StringComparison.Ordinal);
+
+    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes)
+    {
+        byte[] copy = bytes.ToArray();
+        Write(path, stream => stream.Write(copy));
+    }
+
+    public static void WriteAllText(string path, string text) =>
+        WriteAllBytes(path, new System.Text.UTF8Encoding(encoderShouldEmitUTF8Identifier: false).GetBytes(text));
+
+    /// <summary>Writes through <paramref name="write"/> into a temporary file, then replaces <paramref name="path"/>.</summary>
+    public static void Write(string path, Action<Stream> write)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(path);
+        ArgumentNullException.ThrowIfNull(write);
+        string full = Path.GetFullPath(path);
+        string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
+        string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.{Guid.NewGuid():N}{TemporarySuffix}");
+        try
+        {
+            using (var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536))
+            {
+                write(stream);
+                stream.Flush(flushToDisk: true);
+            }
+            File.Move(temp, full, overwrite: true);
+        }
+        catch
+        {
+            TryDelete(temp);
+            throw;
+        }
+        FlushFolder(folder);
+    }
+
+    private static void TryDelete(string temp)
+    {
+        try
+        {
+            File.Delete(temp);
+        }
+        catch (IOException)
+        {
+            // Left for the start-up clean-up, which removes stale temporary files.
+        }
+        catch (UnauthorizedAccessException)
+        {
+            // As above.
+        }
+    }
+
+    /// <summary>fsync on the folder (POSIX only; Windows has no equivalent for folders).</summary>
+    private static void FlushFolder(string folder)
+    {
+        if (OperatingSystem.IsWindows())
+        {
+            return;
+        }
+        int fd = NativeMethods.open(folder, 0 /* O_RDONLY */);
+        if (fd < 0)
+        {
+            return;
+        }
+        try
+        {
+            if (NativeMethods.fsync(fd) != 0)
+            {
+                throw new IOException($"fsync of folder '{folder}' failed (errno {Marshal.GetLastPInvokeError()})");
+            }
+        }
+        finally
+        {
+            _ = NativeMethods.close(fd);
+        }
+    }
+
+    private static class NativeMethods
+    {
+#pragma warning disable SYSLIB1054, CA5392, IDE1006 // plain libc calls, resolved from the C library only
+        [DllImport("libc", SetLastError = true, CharSet = CharSet.Ansi, BestFitMapping = false, ThrowOnUnmappableChar = true)]
+        internal static extern int open([MarshalAs(UnmanagedType.LPUTF8Str)] string path, int flags);
+
+        [DllImport("libc", SetLastError = true)]
+        internal static extern int fsync(int fd);
+
+        [DllImport("libc", SetLastError = true)]
+        internal static extern int close(int fd);
+#pragma warning restore SYSLIB1054, CA5392, IDE1006
+    }
+}

@@ -1,0 +1,155 @@
+using System.Diagnostics;
+using System.Globalization;
+using Seamwright.Core.Estimation;
+using Seamwright.Core.Features;
+using Seamwright.Core.Geometry;
+using Seamwright.Core.Matching;
+using Seamwright.Pipeline.Features;
+
+namespace Seamwright.Pipeline.Pairs;
+
+/// <summary>
+/// One pair from features to decision: match at working resolution, estimate in full-resolution
+/// coordinates, re-localise the tie points at full resolution from the stored patches, polish
+/// again at the requested threshold, decide. Deterministic for the same features and settings.
+/// </summary>
+public static class PairProcessor
+{
+    public static PairOutcome Process(ImageFeatures a, ImageFeatures b, PairSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(a);
+        ArgumentNullException.ThrowIfNull(b);
+        ArgumentNullException.ThrowIfNull(settings);
+        settings.Validate();
+        if (a.PatternVersion != b.PatternVersion)
+        {
+            throw new ArgumentException($"Descriptor patterns differ ({a.PatternVersion} vs {b.PatternVersion}); re-extract the older features.");
+        }
+        long start = Stopwatch.GetTimestamp();
+        var options = settings.Estimation;
+        double threshold = options.Threshold;
+
+        string? texture = TextureProblem(a, "A", settings) ?? TextureProblem(b, "B", settings);
+        if (texture is not null)
+        {
+            return Rejected(a, b, settings, 0, 0, [texture], "not run: too little texture", start, 0);
+        }
+
+        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, settings.Matching);
+        double matchingMs = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+        if (result.Matches.Length < settings.MinMatches)
+        {
+            string reason = result.AmbiguousCount >= 20 && result.AmbiguousCount >= 3 * Math.Max(1, result.Matches.Length)
+                ? Inv($"repeated pattern: {result.AmbiguousCount} features have several equally good partners and only {result.Matches.Length} are distinctive (at least {settings.MinMatches} needed)")
+                : Inv($"too few distinctive matches ({result.Matches.Length}; at least {settings.MinMatches} needed)");
+            return Rejected(a, b, settings, result.Matches.Length, result.AmbiguousCount, [reason], "not run: too few matches", start, matchingMs);
+        }
+
+        var matches = new Correspondence[result.Matches.Length];
+        for (int i = 0; i < matches.Length; i++)
+        {
+            var ka = a.Keypoints[result.Matches[i].IndexA];
+            var kb = b.Keypoints[result.Matches[i].IndexB];
+            matches[i] = new Correspondence(ka.X, ka.Y, kb.X, kb.Y);
+        }
+        // Working-resolution corners carry about a working pixel of error: widen the first threshold accordingly.
+        double coarse = Math.Max(threshold, 1.5 * Math.Max(a.WorkingScale, b.WorkingScale));
+        var estimate = PairEstimator.Estimate(matches, a.FullSize, b.FullSize, options with { Threshold = coarse });
+
+        int relocalized = 0;
+        double relocalizeMs = 0;
+        var final = estimate;
+        var ties = matches;
+        if (estimate.Transform is { } model && settings.Relocalize)
+        {
+            long relocStart = Stopwatch.GetTimestamp();
+            ties = (Correspondence[])matches.Clone();
+            relocalized = Relocalize(a, b, result.Matches, ties, model, coarse, settings);
+            relocalizeMs = Stopwatch.GetElapsedTime(relocStart).TotalMilliseconds;
+            final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
+        }
+        else if (coarse != threshold && estimate.Transform is not null)
+        {
+            final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
+        }
+
+        var tiePoints = new Correspondence[final.InlierIndices.Length];
+        for (int i = 0; i < tiePoints.Length; i++)
+        {
+            tiePoints[i] = ties[final.InlierIndices[i]];
+        }
+        var t = final.TimingsMs;
+        return new PairOutcome
+        {
+            Estimate = final,
+            TiePoints = tiePoints,
+            FeatureCountA = a.Count,
+            FeatureCountB = b.Count,
+            MatchCount = matches.Length,
+            AmbiguousCount = result.AmbiguousCount,
+            RelocalizedCount = relocalized,
+            PatternVersion = a.PatternVersion,
+            TimingsMs = new PairTimings(matchingMs, t.Sampling, t.Refinement, relocalizeMs, t.Polish,
+                Stopwatch.GetElapsedTime(start).TotalMilliseconds),
+        };
+    }
+
+    /// <summary>Re-localises, in place, every match within twice the threshold of the model; returns how many succeeded.</summary>
+    private static int Relocalize(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs, Correspondence[] ties, Transform2D model,
+        double threshold, PairSettings settings)
+    {
+        int radius = Math.Min(a.PatchRadius, b.PatchRadius);
+        int shift = Math.Max(2, (int)Math.Ceiling(threshold) + 1);
+        int template = Math.Clamp(radius - shift - 2, 3, 12);
+        shift = Math.Min(shift, radius - template - 1);
+        if (shift < 2)
+        {
+            return 0;
+        }
+        var options = new RelocalizeOptions { TemplateRadius = template, MaxShift = shift, MinCorrelation = settings.MinCorrelation };
+        int count = 0;
+        double limit = 4 * threshold * threshold;
+        for (int i = 0; i < ties.Length; i++)
+        {
+            var m = ties[i];
+            if (!model.TryApply(m.X1, m.Y1, out double u, out double v) || model.W(m.X1, m.Y1) <= 0
+                || (u - m.X2) * (u - m.X2) + (v - m.Y2) * (v - m.Y2) > limit)
+            {
+                continue;
+            }
+            if (TiePointRelocalizer.TryRelocalize(a.Patch(pairs[i].IndexA), b.Patch(pairs[i].IndexB), model, options, out var refined, out _))
+            {
+                ties[i] = refined;
+                count++;
+            }
+        }
+        return count;
+    }
+
+    private static string? TextureProblem(ImageFeatures f, string name, PairSettings settings) =>
+        f.Count < settings.MinFeatures
+            ? Inv($"too little texture in image {name}: {f.Count} corners above its noise level (at least {settings.MinFeatures} needed)")
+            : null;
+
+    private static PairOutcome Rejected(ImageFeatures a, ImageFeatures b, PairSettings settings, int matchCount, int ambiguous,
+        string[] reasons, string termination, long start, double matchingMs)
+    {
+        var o = settings.Estimation;
+        double total = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+        var estimate = new PairEstimate
+        {
+            Model = o.Model, Transform = null, MatchCount = matchCount, InlierIndices = [],
+            Consensus = new ConsensusFigures(0, 0, 0, 0), Threshold = o.Threshold, Seed = o.Seed,
+            Status = PairStatus.Rejected, Reasons = reasons, CornerSigmaPx = double.NaN, RmsResidualPx = double.NaN,
+            Iterations = 0, LpCount = 0, Terminations = [termination], TimingsMs = new EstimateTimings(0, 0, 0, 0),
+        };
+        return new PairOutcome
+        {
+            Estimate = estimate, TiePoints = [], FeatureCountA = a.Count, FeatureCountB = b.Count, MatchCount = matchCount,
+            AmbiguousCount = ambiguous, RelocalizedCount = 0, PatternVersion = a.PatternVersion,
+            TimingsMs = new PairTimings(matchingMs, 0, 0, 0, 0, total),
+        };
+    }
+
+    private static string Inv(FormattableString s) => s.ToString(CultureInfo.InvariantCulture);
+}

@@ -1,0 +1,26 @@
+namespace Seamwright.Pipeline.Tests;
+
+/// <summary>A fresh folder under the system temp folder, deleted on dispose.</summary>
+internal sealed class TempFolder : IDisposable
+{
+    public TempFolder()
+    {
+        Path = System.IO.Path.Combine(System.IO.Path.GetTempPath(), "seamwright-tests", Guid.NewGuid().ToString("N"));
+        Directory.CreateDirectory(Path);
+    }
+
+    public string Path { get; }
+
+    public string File(string name) => System.IO.Path.Combine(Path, name);
+
+    public void Dispose()
+    {
+        try
+        {
+            Directory.Delete(Path, recursive: true);
+        }
+        catch (IOException)
+        {
+        }
+    }
+}
