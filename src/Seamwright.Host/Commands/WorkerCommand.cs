@@ -4,7 +4,7 @@ using Seamwright.Host.Supervision;
 namespace Seamwright.Host.Commands;
 
 /// <summary>
-/// Hidden command `seamwright worker --memory-mb N`: a decode worker started by the supervisor
+/// Hidden command `seamwright worker --memory-mb N --timeout-s T`: a decode worker started by the supervisor
 /// (<see cref="WorkerPool"/>). It caps its own address space, then answers framed requests on
 /// stdin with framed replies on stdout until stdin closes. Not for interactive use.
 /// </summary>
@@ -13,12 +13,19 @@ internal static class WorkerCommand
     public static int Run(string[] args)
     {
         long budget = 512L << 20;
+        double timeoutSeconds = 120;
         for (int i = 0; i < args.Length; i++)
         {
             if (args[i] == "--memory-mb" && i + 1 < args.Length
                 && long.TryParse(args[i + 1], NumberStyles.None, CultureInfo.InvariantCulture, out long mb) && mb > 0)
             {
                 budget = mb << 20;
+                i++;
+            }
+            else if (args[i] == "--timeout-s" && i + 1 < args.Length
+                && double.TryParse(args[i + 1], NumberStyles.Float, CultureInfo.InvariantCulture, out double s) && s > 0)
+            {
+                timeoutSeconds = s;
                 i++;
             }
             else
@@ -39,7 +46,8 @@ internal static class WorkerCommand
         {
             Console.Error.WriteLine($"seamwright worker: TEST FAULT HOOKS ACTIVE ({faults.Count} files)");
         }
-        var job = new DecodeJob(budget);
+        // Allocator limit: half the budget for one buffer, the rest for the decoder's other planes and the features.
+        var job = new DecodeJob(budget / 2, TimeSpan.FromSeconds(timeoutSeconds));
         try
         {
             return Serve(input, output, job, faults, limits).GetAwaiter().GetResult();
@@ -67,7 +75,7 @@ internal static class WorkerCommand
             {
                 // The decoder asked for more than the budget; the file is bad, and this process
                 // may hold fragments of a huge heap: reply, then let the supervisor replace us.
-                reply = new WorkerReply(request.Id, false, "decoder needed more memory than the per-job cap: " + ex.Message, 0, 0, null, null, 0, true);
+                reply = new WorkerReply(request.Id, false, "decoder needed more memory than the per-job cap: " + ex.Message, 0, 0, null, null, 0, true, 0, "MemoryLimit");
             }
             catch (Exception ex)
             {

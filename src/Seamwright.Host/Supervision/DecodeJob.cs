@@ -1,73 +1,61 @@
 using System.Globalization;
-using SixLabors.ImageSharp;
-using SixLabors.ImageSharp.Memory;
-using SixLabors.ImageSharp.PixelFormats;
+using Seamwright.Pipeline.Features;
+using Seamwright.Pipeline.Loading;
+using Seamwright.Pipeline.Output;
 
 namespace Seamwright.Host.Supervision;
 
 /// <summary>
-/// The worker's job: check the file against the budgets, identify it from its header, decode it
-/// to gray with an allocation-limited ImageSharp configuration, and return a compact summary
-/// (size, format, mean gray level). This is the seam where the Pipeline's ImageLoader and the
-/// feature extraction plug in once they land: the defences below are the ones
-/// RELIABILITY.md lists for ImageSharp 2.1.13, applied inside the disposable process.
+/// The worker's job: load the image with the Pipeline's <see cref="ImageLoader"/> (size cap,
+/// signature, structure check, header-only pixel budget, allocation-limited decode) and extract
+/// its features. The reply is compact (size, format, feature count); the features themselves
+/// go to the feature cache file the supervisor names, when it names one.
 /// </summary>
-internal sealed class DecodeJob : IWorkerJob
+internal sealed class DecodeJob(long allocationLimitBytes, TimeSpan jobTimeout, FeatureSettings? features = null) : IWorkerJob
 {
-    private readonly Configuration _configuration;
-
-    public DecodeJob(long allocationLimitBytes)
-    {
-        _configuration = Configuration.Default.Clone();
-        _configuration.MemoryAllocator = MemoryAllocator.Create(new MemoryAllocatorOptions
-        {
-            AllocationLimitMegabytes = (int)Math.Clamp(allocationLimitBytes >> 20, 1, int.MaxValue),
-        });
-    }
+    private readonly FeatureSettings _features = features ?? FeatureSettings.Default;
+    private readonly Dictionary<(long, long), ImageLoader> _loaders = [];
 
     public WorkerReply Run(WorkerRequest request)
     {
-        var file = new FileInfo(request.Path);
-        if (!file.Exists)
+        var loader = LoaderFor(request);
+        LoadedImage image;
+        try
         {
-            return Fail(request, "file not found");
+            image = loader.Load(request.Path);
         }
-        if (file.Length > request.MaxFileBytes)
+        catch (ImageLoadException ex)
         {
-            return Fail(request, string.Create(CultureInfo.InvariantCulture, $"file is {file.Length} bytes, over the {request.MaxFileBytes}-byte limit"));
+            // A loader time-out leaves a decoding thread running; a fresh worker is cheaper than its CPU.
+            bool recycle = ex.Failure is ImageLoadFailure.Timeout or ImageLoadFailure.MemoryLimit;
+            return new WorkerReply(request.Id, false, ex.Reason, 0, 0, null, null, 0, recycle, 0, ex.Failure.ToString());
         }
-        string? sniffed = ImageSignature.Sniff(request.Path);
-        if (sniffed is null)
+        var extracted = ImageFeatureExtractor.Extract(image.Image, null, _features);
+        if (request.FeatureOutputPath is { } output)
         {
-            return Fail(request, "content is not a supported image format (unknown signature)");
+            AtomicFile.Write(output, stream => FeatureCacheCodec.Write(stream, extracted));
         }
-        var info = Image.Identify(_configuration, request.Path, out var format);
-        if (info is null)
-        {
-            return Fail(request, $"header not readable as {sniffed}");
-        }
-        long pixels = (long)info.Width * info.Height;
-        if (info.Width <= 0 || info.Height <= 0 || pixels > request.MaxPixels)
-        {
-            return Fail(request, string.Create(CultureInfo.InvariantCulture, $"{info.Width} x {info.Height} pixels exceeds the {request.MaxPixels}-pixel budget"));
-        }
-        using var image = Image.Load<L8>(_configuration, request.Path);
-        long sum = 0;
-        image.ProcessPixelRows(rows =>
-        {
-            for (int y = 0; y < rows.Height; y++)
-            {
-                foreach (var p in rows.GetRowSpan(y))
-                {
-                    sum += p.PackedValue;
-                }
-            }
-        });
-        double mean = (double)sum / ((long)image.Width * image.Height);
-        return new WorkerReply(request.Id, true, null, image.Width, image.Height, format?.Name ?? sniffed,
-            string.Create(CultureInfo.InvariantCulture, $"mean gray {mean:F2}"), 0, false);
+        return new WorkerReply(request.Id, true, null, image.DisplaySize.Width, image.DisplaySize.Height, image.Format.ToString(),
+            string.Create(CultureInfo.InvariantCulture, $"{extracted.Count} features at working size {extracted.WorkingSize.Width}x{extracted.WorkingSize.Height}"),
+            0, false, extracted.Count);
     }
 
-    private static WorkerReply Fail(WorkerRequest request, string reason) =>
-        new(request.Id, false, reason, 0, 0, null, null, 0, false);
+    private ImageLoader LoaderFor(WorkerRequest request)
+    {
+        var key = (request.MaxFileBytes, request.MaxPixels);
+        if (!_loaders.TryGetValue(key, out var loader))
+        {
+            loader = new ImageLoader(new LoadLimits
+            {
+                MaxFileBytes = request.MaxFileBytes,
+                MaxPixels = request.MaxPixels,
+                AllocationLimitMegabytes = (int)Math.Clamp(allocationLimitBytes >> 20, 16, 65536),
+                // The supervisor's wall-clock limit kills the whole process; the loader's own
+                // limit stays behind it so the kill, not an abandoned thread, is what ends a hang.
+                DecodeTimeout = jobTimeout * 2,
+            });
+            _loaders[key] = loader;
+        }
+        return loader;
+    }
 }

@@ -48,7 +48,8 @@ internal sealed class DecodeSupervisor(WorkerPool pool, IQuarantineLedger ledger
         return left;
     }
 
-    public async Task<DecodeOutcome> DecodeAsync(string path, CancellationToken cancellationToken)
+    /// <summary>Decodes one file; with <paramref name="featureOutputPath"/> the worker writes the features there.</summary>
+    public async Task<DecodeOutcome> DecodeAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null)
     {
         FileIdentity file;
         try
@@ -69,7 +70,7 @@ internal sealed class DecodeSupervisor(WorkerPool pool, IQuarantineLedger ledger
             JobResult result;
             try
             {
-                result = await pool.RunAsync(path, cancellationToken);
+                result = await pool.RunAsync(path, cancellationToken, featureOutputPath);
             }
             finally
             {

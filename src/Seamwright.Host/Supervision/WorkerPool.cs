@@ -49,7 +49,7 @@ internal sealed class WorkerPool : IAsyncDisposable
     /// Decodes one file in a worker. Throws <see cref="WorkerStartException"/> only when workers
     /// repeatedly fail to start (a broken installation, not a bad file: the service should stop).
     /// </summary>
-    public async Task<JobResult> RunAsync(string path, CancellationToken cancellationToken)
+    public async Task<JobResult> RunAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null)
     {
         var worker = await _slots.Reader.ReadAsync(cancellationToken);
         try
@@ -64,7 +64,7 @@ internal sealed class WorkerPool : IAsyncDisposable
                 worker = await StartWorkerAsync(cancellationToken);
             }
             var request = new WorkerRequest(Interlocked.Increment(ref _nextId), path,
-                _options.MaxFileMegabytes << 20, (long)(_options.MaxMegapixels * 1_000_000));
+                _options.MaxFileMegabytes << 20, (long)(_options.MaxMegapixels * 1_000_000), featureOutputPath);
             Interlocked.Increment(ref _jobs);
             var result = await worker.RunAsync(request, _options, cancellationToken);
             RecordPeak(result.PeakWorkingSetBytes);

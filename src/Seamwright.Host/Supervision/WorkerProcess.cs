@@ -67,6 +67,8 @@ internal sealed class WorkerProcess : IAsyncDisposable
         }
         start.ArgumentList.Add("--memory-mb");
         start.ArgumentList.Add(options.MemoryCapMegabytes.ToString(CultureInfo.InvariantCulture));
+        start.ArgumentList.Add("--timeout-s");
+        start.ArgumentList.Add(options.JobTimeoutSeconds.ToString(CultureInfo.InvariantCulture));
         // Half the cap for the managed heap (ImageSharp keeps large pixel buffers in unmanaged
         // memory, bounded by its allocator limit); the address-space limit bounds the rest.
         start.Environment["DOTNET_GCHeapHardLimit"] = "0x" + (options.MemoryCapBytes / 2).ToString("X", CultureInfo.InvariantCulture);

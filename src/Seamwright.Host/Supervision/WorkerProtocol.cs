@@ -82,8 +82,12 @@ internal static class WorkerProtocol
 /// <summary>First frame from a worker: it started, which limits it applied.</summary>
 internal sealed record WorkerHello(int Protocol, int ProcessId, string Limits);
 
-/// <summary>One job: decode the image at <paramref name="Path"/> within the given budgets.</summary>
-internal sealed record WorkerRequest(long Id, string Path, long MaxFileBytes, long MaxPixels);
+/// <summary>
+/// One job: load the image at <paramref name="Path"/> within the given budgets and extract its
+/// features. When <paramref name="FeatureOutputPath"/> is set the worker writes the features
+/// there (feature cache codec, atomic write) instead of sending them back; the reply stays small.
+/// </summary>
+internal sealed record WorkerRequest(long Id, string Path, long MaxFileBytes, long MaxPixels, string? FeatureOutputPath = null);
 
 /// <summary>
 /// The answer to one job. <paramref name="Ok"/> false means the file is bad (the reason says
@@ -99,4 +103,6 @@ internal sealed record WorkerReply(
     string? Format,
     string? Summary,
     long PeakWorkingSetBytes,
-    bool Recycle);
+    bool Recycle,
+    int FeatureCount = 0,
+    string? FailureKind = null);

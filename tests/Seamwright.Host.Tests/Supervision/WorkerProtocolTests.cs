@@ -36,14 +36,4 @@ public class WorkerProtocolTests
         using var cut = new MemoryStream(whole.ToArray()[..^3]);
         await Assert.ThrowsAsync<EndOfStreamException>(() => WorkerProtocol.ReadAsync<WorkerHello>(cut, CancellationToken.None));
     }
-
-    [Theory]
-    [InlineData(new byte[] { 0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A, 0, 0, 0, 0 }, "PNG")]
-    [InlineData(new byte[] { 0xFF, 0xD8, 0xFF, 0xE0 }, "JPEG")]
-    [InlineData(new byte[] { 0x49, 0x49, 0x2B, 0x00, 8, 0 }, "TIFF")]
-    [InlineData(new byte[] { 0x42, 0x4D, 0, 0 }, "BMP")]
-    [InlineData(new byte[] { 0x54, 0x68, 0x69, 0x73 }, null)]
-    [InlineData(new byte[] { }, null)]
-    public void Sniff_Signature_NamesFormatOrNull(byte[] head, string? expected) =>
-        Assert.Equal(expected, ImageSignature.Sniff(head));
 }
