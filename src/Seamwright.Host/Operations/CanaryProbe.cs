@@ -91,7 +91,10 @@ internal sealed class CanaryProbe(IReadOnlyList<string> roots, IWatcherControl c
         long next;
         lock (s)
         {
-            next = s.Written + 1;
+            // Counted as written before the bytes land: the watcher's event can arrive before
+            // WriteAllText returns, and must then already match this canary.
+            next = ++s.Written;
+            s.WrittenAt = now;
         }
         try
         {
@@ -99,8 +102,6 @@ internal sealed class CanaryProbe(IReadOnlyList<string> roots, IWatcherControl c
                 string.Create(CultureInfo.InvariantCulture, $"seamwright canary {next} {now:O}\n"));
             lock (s)
             {
-                s.Written = next;
-                s.WrittenAt = now;
                 s.Unavailable = null;
             }
         }
@@ -108,6 +109,8 @@ internal sealed class CanaryProbe(IReadOnlyList<string> roots, IWatcherControl c
         {
             lock (s)
             {
+                s.Written = s.Seen; // nothing was written, so nothing is awaited
+                s.WrittenAt = null;
                 if (s.Unavailable is null)
                 {
                     notes.Add($"no canary in {root} ({ex.Message}); relying on periodic rescans there");

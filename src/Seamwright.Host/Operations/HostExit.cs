@@ -11,25 +11,14 @@ namespace Seamwright.Host.Operations;
 /// </summary>
 internal static class HostExit
 {
-    public static int CodeFor(IHost host, Exception? reportedFatal = null)
-    {
-        if (reportedFatal is not null)
-        {
-            return ExitCodes.Fatal;
-        }
-        foreach (var service in host.Services.GetServices<IHostedService>().OfType<BackgroundService>())
-        {
-            if (service.ExecuteTask is { IsFaulted: true })
-            {
-                return ExitCodes.Fatal;
-            }
-        }
-        return ExitCodes.Ok;
-    }
+    /// <summary>The host's loops; take them before running the host (running disposes its services).</summary>
+    public static IReadOnlyList<BackgroundService> LoopsOf(IHost host) =>
+        host.Services.GetServices<IHostedService>().OfType<BackgroundService>().ToList();
+
+    public static int CodeFor(IReadOnlyList<BackgroundService> loops, Exception? reportedFatal = null) =>
+        reportedFatal is not null || loops.Any(l => l.ExecuteTask is { IsFaulted: true }) ? ExitCodes.Fatal : ExitCodes.Ok;
 
     /// <summary>The first faulted loop's exception, for the fatal log line; null when none.</summary>
-    public static Exception? FirstFault(IHost host) =>
-        host.Services.GetServices<IHostedService>().OfType<BackgroundService>()
-            .Select(s => s.ExecuteTask?.Exception?.GetBaseException())
-            .FirstOrDefault(e => e is not null);
+    public static Exception? FirstFault(IReadOnlyList<BackgroundService> loops) =>
+        loops.Select(s => s.ExecuteTask?.Exception?.GetBaseException()).FirstOrDefault(e => e is not null);
 }
