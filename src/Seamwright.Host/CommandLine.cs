@@ -17,6 +17,8 @@ internal static class CommandLine
             "estimate" => Commands.EstimateCommand.Run(rest, Console.Out, Console.Error),
             "make-demo" => Commands.MakeDemoCommand.Run(rest),
             "pair" => Commands.PairCommand.Run(rest, Console.Out, Console.Error),
+            // Hidden: a decode worker process started by the supervisor (Supervision/WorkerPool.cs).
+            "worker" => Commands.WorkerCommand.Run(rest),
             _ => Unknown(args[0]),
         };
     }
