@@ -15,6 +15,7 @@ internal static class CommandLine
         {
             "version" or "--version" => Version(),
             "estimate" => Commands.EstimateCommand.Run(rest, Console.Out, Console.Error),
+            "make-demo" => Commands.MakeDemoCommand.Run(rest),
             _ => Unknown(args[0]),
         };
     }
@@ -29,6 +30,7 @@ internal static class CommandLine
                                       options: --model homography|affine|similarity|translation,
                                       --threshold PX, --seed N, --no-refine, --size-a WxH,
                                       --size-b WxH, --json
+          make-demo DIR               write the demo sets (images + _truth.json) into DIR
         """;
 
     private static int Version()
