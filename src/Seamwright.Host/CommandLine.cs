@@ -19,12 +19,14 @@ internal static class CommandLine
             {
                 "version" or "--version" => Version(),
                 "estimate" => EstimateCommand.Run(rest, Console.Out, Console.Error),
-                "make-demo" => MakeDemoCommand.Run(rest),
                 "pair" => PairCommand.Run(rest, Console.Out, Console.Error),
                 "run" => RunCommand.Execute(rest),
                 "watch" => WatchCommand.Execute(rest),
                 "status" => StatusCommand.Execute(rest),
                 "rerun" => RerunCommand.Execute(rest),
+                "make-demo" => MakeDemoCommand.Run(rest),
+                // Hidden: a decode worker process started by the supervisor (Supervision/WorkerPool.cs).
+                "worker" => WorkerCommand.Run(rest),
                 _ => Unknown(args[0]),
             };
         }
@@ -54,12 +56,12 @@ internal static class CommandLine
                                       options: --model homography|affine|similarity|translation,
                                       --threshold PX, --seed N, --no-refine, --size-a WxH,
                                       --size-b WxH, --json
-          make-demo DIR               write the demo sets (images + _truth.json) into DIR
           pair IMAGE_A IMAGE_B [options]
                                       one pairwise transform from two images (full-resolution
                                       pixels); options: --model M, --threshold PX, --seed N,
                                       --mask-a FILE, --mask-b FILE (mask image or .txt of
                                       'x y width height' rectangles), --json
+          make-demo DIR               write the demo sets (images + _truth.json) into DIR
           version                     print the tool version
 
         Settings: config/appsettings.json beside the executable (or --config FILE), environment
