@@ -19,6 +19,10 @@ internal static class PlaneFit
         {
             return "its transform into the reference is degenerate";
         }
+        if (wAnchor < 0)
+        {
+            return "it lies behind the reference plane (its tie points map to w < 0: turned more than a quarter turn from the reference?)";
+        }
         var corners = Transform2D.Corners(size.Width, size.Height);
         double worst = double.PositiveInfinity;
         foreach (var (x, y) in corners)

@@ -202,18 +202,44 @@ public static class SetAligner
             {
                 return named;
             }
-            int best = members[0];
-            var bestKey = _graph!.Connectivity(best, allowed);
-            foreach (int i in members.Skip(1))
+            // Most links first; among equals the most central (smallest sum of link hops to the
+            // others, so chains from the reference stay short), then the larger total weight.
+            int best = -1;
+            (int Degree, long Hops, double Weight) bestKey = default;
+            foreach (int i in members)
             {
-                var key = _graph.Connectivity(i, allowed);
-                if (key.Degree > bestKey.Degree || (key.Degree == bestKey.Degree && key.Weight > bestKey.Weight))
+                var (degree, weight) = _graph!.Connectivity(i, allowed);
+                var key = (degree, HopSum(i, allowed), weight);
+                if (best < 0 || key.degree > bestKey.Degree
+                    || (key.degree == bestKey.Degree && (key.Item2 < bestKey.Hops || (key.Item2 == bestKey.Hops && key.weight > bestKey.Weight))))
                 {
                     best = i;
                     bestKey = key;
                 }
             }
             return best;
+        }
+
+        private long HopSum(int start, Func<int, bool> allowed)
+        {
+            var hops = new Dictionary<int, int> { [start] = 0 };
+            var queue = new Queue<int>();
+            queue.Enqueue(start);
+            long sum = 0;
+            while (queue.Count > 0)
+            {
+                int u = queue.Dequeue();
+                sum += hops[u];
+                foreach (int l in _graph!.LinksAt(u, allowed))
+                {
+                    int v = _graph.Other(l, u);
+                    if (hops.TryAdd(v, hops[u] + 1))
+                    {
+                        queue.Enqueue(v);
+                    }
+                }
+            }
+            return sum;
         }
 
         /// <summary>Maximum-confidence spanning tree (Kruskal), chained outwards from the reference.</summary>
@@ -263,8 +289,10 @@ public static class SetAligner
                     {
                         continue;
                     }
-                    var (cx, cy) = Anchor(v, allowed);
-                    toReference[v] = TransformOps.Orient(toReference[u] * graph.Step(l, v), cx, cy);
+                    // Scaled by a positive factor only: the sign of w at the image's tie points then
+                    // says whether they land in front of the reference plane or behind it.
+                    var chained = toReference[u] * graph.Step(l, v);
+                    toReference[v] = chained.Scale(1 / Math.Max(TransformOps.MaxAbs(chained), 1e-300));
                     queue.Enqueue(v);
                 }
             }

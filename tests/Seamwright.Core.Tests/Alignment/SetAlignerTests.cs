@@ -221,4 +221,59 @@ public sealed class SetAlignerTests(ITestOutputHelper output)
         var b = SetAligner.Align(set.Sizes, set.Links, MotionModel.Homography);
         Assert.Equal(a.Images.Select(p => p.ToReference), b.Images.Select(p => p.ToReference));
     }
+
+    private static SyntheticSet LargeGrid(double perspective)
+    {
+        const int side = 6;
+        var toWorld = new Transform2D[side * side];
+        for (int r = 0; r < side; r++)
+        {
+            for (int c = 0; c < side; c++)
+            {
+                toWorld[r * side + c] = SyntheticSet.Place(c * 580 + 3 * r, r * 430 - 4 * c, 0.7 * ((r + c) % 3) - 0.7, 1, perspective * (c - 2.5), perspective * (r - 2.5));
+            }
+        }
+        var set = new SyntheticSet(Tile, toWorld, 77);
+        for (int r = 0; r < side; r++)
+        {
+            for (int c = 0; c < side; c++)
+            {
+                int i = r * side + c;
+                if (c + 1 < side)
+                {
+                    set.AddLink(i, i + 1, maxTies: 40);
+                }
+                if (r + 1 < side)
+                {
+                    set.AddLink(i, i + side, maxTies: 40);
+                }
+            }
+        }
+        return set;
+    }
+
+    [Fact]
+    public void Align_SixBySixGridOfHomographies_JointWithinStatedErrorOfTruth()
+    {
+        // 36 tiles, 60 links, a central reference. A homography's perspective terms are weakly
+        // observed through narrow overlaps, so noise (0.3 px) grows with distance from the reference:
+        // stated bound mean < 2.5 px, worst corner < 12 px (3 x 3: < 1 px mean).
+        var (tm, tx, jm, jx) = Compare(LargeGrid(1e-5), "grid 6x6 homography");
+        Assert.True(jm < 2.5, $"joint mean {jm}");
+        Assert.True(jx < 12, $"joint max {jx}");
+        Assert.True(jm < tm && jx < tx);
+    }
+
+    [Fact]
+    public void Align_SixBySixGridAffine_JointWithinOnePixelOfTruth()
+    {
+        var set = LargeGrid(0);
+        var tree = SetAligner.Align(set.Sizes, set.Links, MotionModel.Affine, new AlignmentOptions { JointRefinement = false });
+        var joint = SetAligner.Align(set.Sizes, set.Links, MotionModel.Affine);
+        var (tm, tx) = set.CornerError(tree, i => tree.Images[i].ToReference);
+        var (jm, jx) = set.CornerError(joint, i => joint.Images[i].ToReference);
+        output.WriteLine($"grid 6x6 affine: corner error vs truth, spanning tree mean {tm:0.000} px max {tx:0.000} px; joint mean {jm:0.000} px max {jx:0.000} px");
+        Assert.True(jm < 1.0, $"joint mean {jm}");
+        Assert.True(jx < 3, $"joint max {jx}");
+    }
 }
