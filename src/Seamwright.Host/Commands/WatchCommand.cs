@@ -106,7 +106,7 @@ internal static class WatchCommand
             var runtime = new ServiceRuntime(sessions, options) { Ops = ops };
             builder.Services.AddSingleton(runtime);
             ops.AddTo(builder.Services, sessions.Select(s => Path.GetFullPath(s.Catalog.RootPath)).ToList(),
-                sessions.Select(s => s.Context.OutputRoot).ToList(), Path.Combine(AppContext.BaseDirectory, "logs"));
+                sessions.Select(s => s.Context.OutputRoot).ToList(), LogFolderOf(builder.Configuration));
             if (ops.Pool is not null)
             {
                 Log.Information("Decoding in {Workers} supervised worker processes: {Timeout} s and {Memory} MiB per job, quarantine after {Strikes} strikes",
@@ -179,5 +179,22 @@ internal static class WatchCommand
         {
             Log.Error("Settings reload ignored: {Message}", e.Message);
         }
+    }
+
+    /// <summary>
+    /// The folder the configured rolling file sink writes to (Serilog resolves a relative path
+    /// against the working directory), so retention sweeps where the logs really are; null when
+    /// no file sink is configured.
+    /// </summary>
+    internal static string? LogFolderOf(IConfiguration configuration)
+    {
+        foreach (var sink in configuration.GetSection("Serilog:WriteTo").GetChildren())
+        {
+            if (sink["Name"] == "File" && sink["Args:path"] is { Length: > 0 } path)
+            {
+                return Path.GetDirectoryName(Path.GetFullPath(path));
+            }
+        }
+        return null;
     }
 }

@@ -31,12 +31,16 @@ internal sealed class RetentionSweeper(
     IReadOnlyList<string> confidenceLogs,
     IRunRetention? runs)
 {
+    /// <summary>The names our rolling log sink gives its files (<c>seamwright-YYYYMMDD.log</c>).</summary>
+    public const string LogFilePattern = "seamwright-*.log";
+
     public IReadOnlyList<string> Sweep(DateTimeOffset now)
     {
         var notes = new List<string>();
         if (options.LogRetentionDays > 0 && logFolder is not null && Directory.Exists(logFolder))
         {
-            var files = new DirectoryInfo(logFolder).GetFiles().OrderByDescending(f => f.LastWriteTimeUtc).Skip(1);
+            // Only our own rolling files: the folder may be shared with other programs' logs.
+            var files = new DirectoryInfo(logFolder).GetFiles(LogFilePattern).OrderByDescending(f => f.LastWriteTimeUtc).Skip(1);
             int n = DeleteOlder(files, now - TimeSpan.FromDays(options.LogRetentionDays));
             Note(notes, n, $"log files older than {options.LogRetentionDays} days");
         }

@@ -15,7 +15,7 @@ public class Xoshiro256StarStarTests
     [Fact]
     public void NextUInt64_SeedOne_MatchesPinnedSequence()
     {
-        // Pinned by an independent Python transcription of the published algorithm: any change
+        // Pinned by an independent Python re-implementation of the published algorithm: any change
         // here breaks the reproducibility promise for every stored result.
         var rng = new Xoshiro256StarStar(1);
         Assert.Equal(0xB3F2AF6D0FC710C5UL, rng.NextUInt64());

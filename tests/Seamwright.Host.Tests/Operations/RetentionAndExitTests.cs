@@ -46,6 +46,7 @@ public sealed class RetentionAndExitTests : IDisposable
         string oldLog = Touch("logs/seamwright-1.log", 40);
         string oldestLogButNewest = Touch("logs/seamwright-2.log", 35);
         string freshLog = Touch("logs/seamwright-3.log", 1);
+        string otherProgramsLog = Touch("logs/other-program.log", 400);
         string oldFeature = Touch("cache/fp/ab/abcd.bin", 90);
         string freshFeature = Touch("cache/fp/cd/cdef.bin", 3);
         string log = Path.Combine(_folder, "confidence.jsonl");
@@ -58,6 +59,7 @@ public sealed class RetentionAndExitTests : IDisposable
         Assert.False(File.Exists(oldLog));
         Assert.False(File.Exists(oldestLogButNewest));
         Assert.True(File.Exists(freshLog));
+        Assert.True(File.Exists(otherProgramsLog));
         Assert.False(File.Exists(oldFeature));
         Assert.False(Directory.Exists(Path.GetDirectoryName(oldFeature)));
         Assert.True(File.Exists(freshFeature));
