@@ -32,6 +32,12 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
         {
             e.Add($"{S}:Engine is '{o.Engine}'; allowed: {string.Join(", ", EngineFactory.Names)}");
         }
+        else if (o.Engine == ChecksumEngine.EngineName && Environment.GetEnvironmentVariable("SEAMWRIGHT_TEST_HOOKS") != "1")
+        {
+            // The checksum engine marks every pair accepted with an identity transform: it exists for
+            // the service's own tests and must never serve real folders by a slip in the settings.
+            e.Add($"{S}:Engine is '{o.Engine}', a test engine (allowed only with SEAMWRIGHT_TEST_HOOKS=1); use 'features'");
+        }
         if (!o.Profiles.ContainsKey("default"))
         {
             o.Profiles["default"] = new ProfileSettings();

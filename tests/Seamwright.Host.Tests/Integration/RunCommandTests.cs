@@ -31,6 +31,20 @@ public class RunCommandTests
     }
 
     [Fact]
+    public void Run_TestEngineWithoutTestHooks_RefusedAsBadSetting()
+    {
+        using var dir = new ScratchFolder();
+        TestImages.WriteSet(dir.Sub("in/a"), 2, 1);
+        using var p = SeamwrightProcess.StartWithEnvironment(dir.Path, new Dictionary<string, string> { ["SEAMWRIGHT_TEST_HOOKS"] = "0" },
+            ["run", dir.Sub("in"), "--output", dir.Sub("out"), "--Seamwright:Engine=checksum"]);
+        Assert.True(p.WaitForExit(Limit), "did not finish");
+
+        Assert.True(p.ExitCode == 2, $"exit {p.ExitCode}\n{p.Output}\n{p.Errors}");
+        Assert.Contains("Seamwright:Engine", p.Output + p.Errors, StringComparison.Ordinal);
+        Assert.False(Directory.Exists(dir.Sub("out/a")));
+    }
+
+    [Fact]
     public void Run_UnchangedSecondRun_DoesNothingSaysSoAndOutputsByteIdentical()
     {
         using var dir = new ScratchFolder();

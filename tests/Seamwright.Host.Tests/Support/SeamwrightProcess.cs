@@ -43,6 +43,7 @@ internal sealed class SeamwrightProcess : IDisposable
             psi.ArgumentList.Add(a);
         }
         psi.Environment["DOTNET_CLI_TELEMETRY_OPTOUT"] = "1";
+        psi.Environment["SEAMWRIGHT_TEST_HOOKS"] = "1"; // allows the fast checksum test engine
         foreach (var (key, value) in environment ?? new Dictionary<string, string>())
         {
             psi.Environment[key] = value;
