@@ -13,7 +13,8 @@ internal static class Program
         }
         if (args.Length > 0 && args[0] == "eval-refiner")
         {
-            return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3);
+            return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3,
+                args.Length > 2 ? double.Parse(args[2], CultureInfo.InvariantCulture) : new Seamwright.Core.Estimation.ConsensusRefinerOptions().CandidateRadiusThresholds);
         }
         BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
         return 0;

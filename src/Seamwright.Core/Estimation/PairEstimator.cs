@@ -105,7 +105,7 @@ public static class PairEstimator
         ArgumentNullException.ThrowIfNull(options);
         options.Validate();
         CheckSize(sizeA, nameof(sizeA));
-        return FinalPolish.Run(options.Model, matches, model, sizeA, options.Threshold, options.PolishMaxRounds);
+        return FinalPolish.Run(options.Model, matches, model, sizeA, options.Threshold, options.PolishMaxRounds, options.PolishConsensusTolerance);
     }
 
     /// <summary>

@@ -69,11 +69,26 @@ public class ConsensusRefinerTests
         var matches = HardConsensusProblems.Generate(MotionModel.Homography, 41, inliers: 40, decoys: 20, gross: 40, noise: 1.0, decoyShift: 8);
         var initial = PlainRansac.Estimate(matches, MotionModel.Homography, Threshold, 41, maxIterations: 20);
 
-        var r = ConsensusRefiner.Refine(matches, initial.Model, MotionModel.Homography, Threshold, new ConsensusRefinerOptions { MaxLinearPrograms = 2 });
+        var r = ConsensusRefiner.Refine(matches, initial.Model, MotionModel.Homography, Threshold, new ConsensusRefinerOptions { MaxLinearPrograms = 2, CandidateRadiusThresholds = double.PositiveInfinity });
 
         Assert.Equal(2, r.LinearPrograms);
         Assert.Contains("cap", r.Termination, StringComparison.Ordinal);
         Assert.True(r.ConsensusAfter >= r.ConsensusBefore);
+    }
+
+    [Fact]
+    public void Refine_ManyGrossOutliers_HoldsOnlyNearbyCandidatesAndKeepsConsensus()
+    {
+        var matches = HardConsensusProblems.Generate(MotionModel.Homography, 43, inliers: 60, decoys: 0, gross: 140, noise: 1.0, decoyShift: 0);
+        var initial = PlainRansac.Estimate(matches, MotionModel.Homography, Threshold, 43, maxIterations: 200);
+
+        var filtered = ConsensusRefiner.Refine(matches, initial.Model, MotionModel.Homography, Threshold, new ConsensusRefinerOptions());
+        var all = ConsensusRefiner.Refine(matches, initial.Model, MotionModel.Homography, Threshold,
+            new ConsensusRefinerOptions { CandidateRadiusThresholds = double.PositiveInfinity });
+
+        Assert.Contains("of 200 matches within 5 thresholds", filtered.Termination, StringComparison.Ordinal);
+        Assert.True(filtered.ConsensusAfter >= filtered.ConsensusBefore);
+        Assert.True(filtered.LinearPrograms <= all.LinearPrograms, $"{filtered.LinearPrograms} LPs with the filter, {all.LinearPrograms} without");
     }
 
     [Fact]
