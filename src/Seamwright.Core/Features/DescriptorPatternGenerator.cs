@@ -157,8 +157,8 @@ public static class DescriptorPatternGenerator
         {
             var img = PatternTrainingImages.Generate(ref rng, size);
             var smoothed = GaussianSmoother.Smooth(img, size, size, SmoothingSigma, SmoothingRadius);
-            var corners = CornerDetector.Detect(img, size, size, ReadOnlySpan<byte>.Empty, border, PatchesPerImage,
-                new CornerDetectorOptions { NoiseFactor = 0, CellSize = 16 });
+            var corners = CornerDetector.Detect(img, size, size, ReadOnlySpan<byte>.Empty, border, PatchesPerImage, 0f,
+                new CornerDetectorOptions { CellSize = 16 });
             foreach (var c in corners)
             {
                 int x = (int)MathF.Round(c.X), y = (int)MathF.Round(c.Y);

@@ -26,59 +26,63 @@ public static class OrientedCornerExtractor
         var descriptors = new List<Descriptor256>(options.MaxFeatures);
         var pattern = DescriptorPattern.Points;
         int border = BinaryDescriptor.Reach + 2;
+        // Noise is estimated where it is still white (level 0) and carried to every level by simulation.
+        double sigma = NoiseLevel.Estimate(image.Pixels, image.Width, image.Height);
+        var noisePerLevel = NoiseResponse.PerUnitVariance(options);
         var levelImage = image;
         var levelMask = mask;
+        double levelScale = 1.0;
         for (int level = 0; level < options.Levels; level++)
         {
-            double f = Math.Pow(options.ScaleFactor, level);
-            int w = (int)Math.Round(image.Width / f), h = (int)Math.Round(image.Height / f);
-            if (w <= 2 * border + 8 || h <= 2 * border + 8)
-            {
-                break;
-            }
             if (level > 0)
             {
-                // Each level from the one before: the cost follows the pyramid's size, not levels x image.
-                levelImage = AreaResampler.Downscale(levelImage, w, h);
-                levelMask = levelMask is null ? null : AreaResampler.Downscale(levelMask, w, h);
+                // Each level from the one before (exact area averaging, so the scales compound exactly):
+                // the cost follows the pyramid's size, not levels x image.
+                int nextW = AreaResampler.OutputLength(levelImage.Width, options.ScaleFactor);
+                int nextH = AreaResampler.OutputLength(levelImage.Height, options.ScaleFactor);
+                if (nextW <= 2 * border + 8 || nextH <= 2 * border + 8)
+                {
+                    break;
+                }
+                levelImage = AreaResampler.Downscale(levelImage, options.ScaleFactor).Image;
+                levelMask = levelMask is null ? null : AreaResampler.Downscale(levelMask, options.ScaleFactor).Image;
+                levelScale *= options.ScaleFactor;
             }
+            int w = levelImage.Width, h = levelImage.Height;
             var corners = CornerDetector.Detect(levelImage.Pixels, w, h,
-                levelMask is null ? ReadOnlySpan<byte>.Empty : levelMask.Pixels, border, budgets[level], options);
+                levelMask is null ? ReadOnlySpan<byte>.Empty : levelMask.Pixels, border, budgets[level],
+                NoiseFloor(options, noisePerLevel, level, sigma), options);
             if (corners.Count == 0)
             {
                 continue;
             }
             var smoothed = GaussianSmoother.Smooth(levelImage.Pixels, w, h, DescriptorPatternGenerator.SmoothingSigma,
                 DescriptorPatternGenerator.SmoothingRadius);
-            double sx = (double)image.Width / w, sy = (double)image.Height / h;
             foreach (var c in corners)
             {
                 int cx = (int)MathF.Round(c.X), cy = (int)MathF.Round(c.Y);
                 float angle = IntensityCentroid.Angle(levelImage.Pixels, w, cx, cy);
                 descriptors.Add(BinaryDescriptor.Compute(smoothed, w, cx, cy, angle, pattern));
                 keypoints.Add(new Keypoint(
-                    (float)((c.X + 0.5) * sx - 0.5), (float)((c.Y + 0.5) * sy - 0.5),
-                    (float)Math.Sqrt(sx * sy), angle, c.Response, level));
+                    (float)ScaledImage.ToSource(c.X, levelScale), (float)ScaledImage.ToSource(c.Y, levelScale),
+                    (float)levelScale, angle, c.Response, level));
             }
         }
         return new FeatureSet([.. keypoints], [.. descriptors]);
     }
 
     /// <summary>
-    /// The working copy: the image shrunk by area averaging to at most maxPixels (a copy when it
-    /// already fits). Per-axis factor full / working is Width / working.Width.
+    /// The smallest response kept on a level: NoiseFactor times the mean response of pure noise there,
+    /// that is level-0 noise carried through the pyramid plus the rounding to 8 bits of the level
+    /// itself (white at that level, at least MinNoiseSigma).
     /// </summary>
-    public static GrayImage ShrinkToBudget(GrayImage image, long maxPixels)
+    private static float NoiseFloor(CornerDetectorOptions options, double[] perUnit, int level, double sigma)
     {
-        ArgumentNullException.ThrowIfNull(image);
-        long pixels = (long)image.Width * image.Height;
-        if (pixels <= maxPixels)
-        {
-            return image;
-        }
-        double s = Math.Sqrt((double)pixels / maxPixels);
-        int w = Math.Max(1, (int)Math.Floor(image.Width / s)), h = Math.Max(1, (int)Math.Floor(image.Height / s));
-        return AreaResampler.Downscale(image, w, h);
+        double floorSigma = options.MinNoiseSigma;
+        double variance = level == 0
+            ? perUnit[0] * Math.Max(sigma, floorSigma) * Math.Max(sigma, floorSigma)
+            : perUnit[level] * sigma * sigma + perUnit[0] * floorSigma * floorSigma;
+        return (float)(options.NoiseFactor * variance);
     }
 
     /// <summary>Budget per level in proportion to the level's area (geometric in 1 / ScaleFactor^2).</summary>

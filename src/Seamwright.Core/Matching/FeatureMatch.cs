@@ -18,6 +18,12 @@ public sealed record MatchOptions
     /// <summary>Keep a match only when B's best partner in A is the same feature (mutual nearest neighbours).</summary>
     public bool Mutual { get; init; } = true;
 
+    /// <summary>
+    /// Two keypoints on different pyramid levels closer than this many pixels of the coarser level
+    /// are the same corner (judgement: about the corner's localisation spread across levels).
+    /// </summary>
+    public double SameCornerRadius { get; init; } = 2.0;
+
     /// <summary>Largest Hamming distance accepted at all (of 256 bits).</summary>
     public int MaxDistance { get; init; } = 80;
 }

@@ -23,62 +23,7 @@ internal static class EstimateOutput
         using (var w = new Utf8JsonWriter(stream))
         {
             w.WriteStartObject();
-            w.WriteString("model", ModelName(e.Model));
-            w.WritePropertyName("homography");
-            if (e.Transform is { } h)
-            {
-                w.WriteStartArray();
-                foreach (var row in h.Normalized().ToRows())
-                {
-                    w.WriteStartArray();
-                    foreach (double v in row)
-                    {
-                        Number(w, v);
-                    }
-                    w.WriteEndArray();
-                }
-                w.WriteEndArray();
-            }
-            else
-            {
-                w.WriteNullValue();
-            }
-            w.WriteNumber("matchCount", e.MatchCount);
-            w.WriteNumber("inlierCount", e.InlierIndices.Length);
-            w.WriteStartArray("inlierIndices");
-            foreach (int i in e.InlierIndices)
-            {
-                w.WriteNumberValue(i);
-            }
-            w.WriteEndArray();
-            w.WriteStartObject("consensus");
-            w.WriteNumber("sampling", e.Consensus.Sampling);
-            w.WriteNumber("refined", e.Consensus.Refined);
-            w.WriteNumber("final", e.Consensus.Final);
-            w.WriteNumber("runnerUp", e.Consensus.RunnerUp);
-            w.WriteEndObject();
-            w.WritePropertyName("threshold");
-            Number(w, e.Threshold);
-            w.WriteNumber("seed", e.Seed);
-            w.WriteString("status", StatusName(e.Status));
-            w.WriteStartArray("reasons");
-            foreach (string r in e.Reasons)
-            {
-                w.WriteStringValue(r);
-            }
-            w.WriteEndArray();
-            w.WritePropertyName("cornerSigmaPx");
-            Number(w, e.CornerSigmaPx);
-            w.WritePropertyName("rmsResidualPx");
-            Number(w, e.RmsResidualPx);
-            w.WriteNumber("iterations", e.Iterations);
-            w.WriteNumber("lpCount", e.LpCount);
-            w.WriteStartArray("terminations");
-            foreach (string t in e.Terminations)
-            {
-                w.WriteStringValue(t);
-            }
-            w.WriteEndArray();
+            WriteEstimateFields(w, e);
             Size(w, "sizeA", sizeA);
             Size(w, "sizeB", sizeB);
             w.WriteStartObject("timingsMs");
@@ -90,6 +35,72 @@ internal static class EstimateOutput
             w.WriteEndObject();
         }
         return Encoding.UTF8.GetString(stream.ToArray());
+    }
+
+    /// <summary>
+    /// The estimate's own fields, in the fixed order shared by every command that reports a pair
+    /// (<c>estimate</c>, <c>pair</c>); the caller writes the enclosing object and what follows.
+    /// </summary>
+    public static void WriteEstimateFields(Utf8JsonWriter w, PairEstimate e)
+    {
+        ArgumentNullException.ThrowIfNull(w);
+        ArgumentNullException.ThrowIfNull(e);
+        w.WriteString("model", ModelName(e.Model));
+        w.WritePropertyName("homography");
+        if (e.Transform is { } h)
+        {
+            w.WriteStartArray();
+            foreach (var row in h.Normalized().ToRows())
+            {
+                w.WriteStartArray();
+                foreach (double v in row)
+                {
+                    Number(w, v);
+                }
+                w.WriteEndArray();
+            }
+            w.WriteEndArray();
+        }
+        else
+        {
+            w.WriteNullValue();
+        }
+        w.WriteNumber("matchCount", e.MatchCount);
+        w.WriteNumber("inlierCount", e.InlierIndices.Length);
+        w.WriteStartArray("inlierIndices");
+        foreach (int i in e.InlierIndices)
+        {
+            w.WriteNumberValue(i);
+        }
+        w.WriteEndArray();
+        w.WriteStartObject("consensus");
+        w.WriteNumber("sampling", e.Consensus.Sampling);
+        w.WriteNumber("refined", e.Consensus.Refined);
+        w.WriteNumber("final", e.Consensus.Final);
+        w.WriteNumber("runnerUp", e.Consensus.RunnerUp);
+        w.WriteEndObject();
+        w.WritePropertyName("threshold");
+        Number(w, e.Threshold);
+        w.WriteNumber("seed", e.Seed);
+        w.WriteString("status", StatusName(e.Status));
+        w.WriteStartArray("reasons");
+        foreach (string r in e.Reasons)
+        {
+            w.WriteStringValue(r);
+        }
+        w.WriteEndArray();
+        w.WritePropertyName("cornerSigmaPx");
+        Number(w, e.CornerSigmaPx);
+        w.WritePropertyName("rmsResidualPx");
+        Number(w, e.RmsResidualPx);
+        w.WriteNumber("iterations", e.Iterations);
+        w.WriteNumber("lpCount", e.LpCount);
+        w.WriteStartArray("terminations");
+        foreach (string t in e.Terminations)
+        {
+            w.WriteStringValue(t);
+        }
+        w.WriteEndArray();
     }
 
     public static void WriteSummary(TextWriter o, PairEstimate e, ImageSize sizeA, ImageSize sizeB)
@@ -117,7 +128,7 @@ internal static class EstimateOutput
         o.WriteLine(string.Create(c, $"  {e.Iterations} samples, {e.LpCount} linear programs; {e.TimingsMs.Total:0.0} ms (sampling {e.TimingsMs.Sampling:0.0}, refinement {e.TimingsMs.Refinement:0.0}, polish {e.TimingsMs.Polish:0.0})"));
     }
 
-    private static void Number(Utf8JsonWriter w, double v)
+    internal static void Number(Utf8JsonWriter w, double v)
     {
         if (double.IsFinite(v))
         {
@@ -129,13 +140,13 @@ internal static class EstimateOutput
         }
     }
 
-    private static void Timing(Utf8JsonWriter w, string name, double ms)
+    internal static void Timing(Utf8JsonWriter w, string name, double ms)
     {
         w.WritePropertyName(name);
         Number(w, Math.Round(ms, 3));
     }
 
-    private static void Size(Utf8JsonWriter w, string name, ImageSize size)
+    internal static void Size(Utf8JsonWriter w, string name, ImageSize size)
     {
         w.WriteStartObject(name);
         w.WriteNumber("width", size.Width);

@@ -7,7 +7,7 @@ namespace Seamwright.Pipeline.Features;
 /// <summary>
 /// Binary form of <see cref="ImageFeatures"/> for the feature cache. Layout (little-endian):
 /// magic "SWFC", format version (int32), pattern version and settings fingerprint (length-prefixed
-/// UTF-8), full and working size (4 x int32), keypoint count, patch radius, then per keypoint
+/// UTF-8), full and working size (4 x int32), working scale (float64), keypoint count, patch radius, then per keypoint
 /// X, Y, Scale, Angle, Response (float32) and Level (int32), then the descriptors (4 x uint64 each),
 /// then the patches, and last an FNV-1a 64-bit checksum of everything before it. A reader
 /// rejects any other format version, a bad checksum or a truncated stream with
@@ -35,6 +35,7 @@ public static class FeatureCacheCodec
             w.Write(features.FullSize.Height);
             w.Write(features.WorkingSize.Width);
             w.Write(features.WorkingSize.Height);
+            w.Write(features.WorkingScale);
             w.Write(features.Count);
             w.Write(features.PatchRadius);
             foreach (var k in features.Keypoints)
@@ -93,6 +94,7 @@ public static class FeatureCacheCodec
             string fingerprint = r.ReadString();
             var full = new ImageSize(r.ReadInt32(), r.ReadInt32());
             var working = new ImageSize(r.ReadInt32(), r.ReadInt32());
+            double scale = r.ReadDouble();
             int count = r.ReadInt32();
             int radius = r.ReadInt32();
             if (count < 0 || count > MaxKeypoints || radius < 0 || radius > MaxPatchRadius)
@@ -116,7 +118,7 @@ public static class FeatureCacheCodec
                 throw new InvalidDataException("Feature cache entry has the wrong length.");
             }
             var patches = r.ReadBytes((int)patchBytes);
-            return new ImageFeatures(full, working, keypoints, descriptors, radius, patches, pattern, fingerprint);
+            return new ImageFeatures(full, working, scale, keypoints, descriptors, radius, patches, pattern, fingerprint);
         }
         catch (EndOfStreamException e)
         {

@@ -12,11 +12,11 @@ public static class ImageFeatureExtractor
         ArgumentNullException.ThrowIfNull(full);
         ArgumentNullException.ThrowIfNull(settings);
         settings.Validate();
-        var working = OrientedCornerExtractor.ShrinkToBudget(full, settings.WorkingPixelBudget);
+        var scaled = AreaResampler.ToPixelBudget(full, settings.WorkingPixelBudget);
+        var working = scaled.Image;
+        double scale = scaled.Scale;
         var workingMask = mask?.Rasterize(full.Width, full.Height, working.Width, working.Height);
         var set = OrientedCornerExtractor.Extract(working, workingMask, settings.Detector);
-        double sx = (double)full.Width / working.Width, sy = (double)full.Height / working.Height;
-        double scale = Math.Sqrt(sx * sy);
         int radius = settings.PatchRadiusFor(scale);
         int side = 2 * radius + 1;
         var keypoints = new Keypoint[set.Count];
@@ -26,14 +26,14 @@ public static class ImageFeatureExtractor
             var k = set.Keypoints[i];
             var f = k with
             {
-                X = (float)((k.X + 0.5) * sx - 0.5),
-                Y = (float)((k.Y + 0.5) * sy - 0.5),
+                X = (float)scaled.ToSource(k.X),
+                Y = (float)scaled.ToSource(k.Y),
                 Scale = (float)(k.Scale * scale),
             };
             keypoints[i] = f;
             CopyPatch(full, ImageFeatures.PatchCentre(f.X), ImageFeatures.PatchCentre(f.Y), radius, patches.AsSpan(i * side * side, side * side));
         }
-        return new ImageFeatures(new ImageSize(full.Width, full.Height), new ImageSize(working.Width, working.Height),
+        return new ImageFeatures(new ImageSize(full.Width, full.Height), new ImageSize(working.Width, working.Height), scale,
             keypoints, set.Descriptors, radius, patches, DescriptorPattern.Version, settings.Fingerprint);
     }
 

@@ -13,7 +13,7 @@ namespace Seamwright.Pipeline.Features;
 /// </summary>
 public sealed class ImageFeatures
 {
-    public ImageFeatures(ImageSize fullSize, ImageSize workingSize, Keypoint[] keypoints, Descriptor256[] descriptors,
+    public ImageFeatures(ImageSize fullSize, ImageSize workingSize, double workingScale, Keypoint[] keypoints, Descriptor256[] descriptors,
         int patchRadius, byte[] patches, string patternVersion, string settingsFingerprint)
     {
         ArgumentNullException.ThrowIfNull(keypoints);
@@ -26,7 +26,12 @@ public sealed class ImageFeatures
         {
             throw new ArgumentException("Keypoints, descriptors and patches disagree in count.");
         }
+        if (!double.IsFinite(workingScale) || workingScale < 1)
+        {
+            throw new ArgumentOutOfRangeException(nameof(workingScale), workingScale, "The working scale is full-resolution pixels per working pixel (at least 1).");
+        }
         FullSize = fullSize;
+        WorkingScale = workingScale;
         WorkingSize = workingSize;
         Keypoints = keypoints;
         Descriptors = descriptors;
@@ -42,8 +47,11 @@ public sealed class ImageFeatures
     /// <summary>Size of the working copy the corners were detected on.</summary>
     public ImageSize WorkingSize { get; }
 
-    /// <summary>Full-resolution pixels per working pixel (1 when no downscale was needed).</summary>
-    public double WorkingScale => Math.Sqrt((double)FullSize.Width / WorkingSize.Width * FullSize.Height / WorkingSize.Height);
+    /// <summary>
+    /// Full-resolution pixels per working pixel, the same on both axes (1 when no downscale was
+    /// needed): a working coordinate x is the full-resolution coordinate (x + 0.5) * scale - 0.5.
+    /// </summary>
+    public double WorkingScale { get; }
 
     public Keypoint[] Keypoints { get; }
 

@@ -35,13 +35,12 @@ public static class PairProcessor
             return Rejected(a, b, settings, 0, 0, [texture], "not run: too little texture", start, 0);
         }
 
-        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, settings.Matching);
+        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, settings.Matching);
         double matchingMs = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         if (result.Matches.Length < settings.MinMatches)
         {
-            string reason = result.AmbiguousCount >= 20 && result.AmbiguousCount >= 3 * Math.Max(1, result.Matches.Length)
-                ? Inv($"repeated pattern: {result.AmbiguousCount} features have several equally good partners and only {result.Matches.Length} are distinctive (at least {settings.MinMatches} needed)")
-                : Inv($"too few distinctive matches ({result.Matches.Length}; at least {settings.MinMatches} needed)");
+            string reason = RepeatedPattern(a, b, settings)
+                ?? Inv($"too few distinctive matches ({result.Matches.Length}; at least {settings.MinMatches} needed)");
             return Rejected(a, b, settings, result.Matches.Length, result.AmbiguousCount, [reason], "not run: too few matches", start, matchingMs);
         }
 
@@ -73,6 +72,10 @@ public static class PairProcessor
             final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
         }
 
+        if (final.Status != PairStatus.Accepted && RepeatedPattern(a, b, settings) is { } repeated)
+        {
+            final = final with { Reasons = [repeated, .. final.Reasons] };
+        }
         var tiePoints = new Correspondence[final.InlierIndices.Length];
         for (int i = 0; i < tiePoints.Length; i++)
         {
@@ -124,6 +127,17 @@ public static class PairProcessor
             }
         }
         return count;
+    }
+
+    /// <summary>A reason naming a repeated pattern when either image is strongly self-similar, else null.</summary>
+    private static string? RepeatedPattern(ImageFeatures a, ImageFeatures b, PairSettings settings)
+    {
+        double ra = SelfSimilarity.RepeatedFraction(a.Descriptors, a.Keypoints);
+        double rb = SelfSimilarity.RepeatedFraction(b.Descriptors, b.Keypoints);
+        double worst = Math.Max(ra, rb);
+        return worst >= settings.RepeatedPatternFraction
+            ? Inv($"repeated pattern: {100 * worst:0}% of the sampled corners of image {(ra >= rb ? "A" : "B")} have a near-identical twin elsewhere in the same image, so matches are ambiguous")
+            : null;
     }
 
     private static string? TextureProblem(ImageFeatures f, string name, PairSettings settings) =>

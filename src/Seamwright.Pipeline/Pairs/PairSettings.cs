@@ -18,6 +18,13 @@ public sealed record PairSettings
     /// <summary>Fewer distinctive matches than this: not estimated.</summary>
     public int MinMatches { get; init; } = 12;
 
+    /// <summary>
+    /// Share of an image's sampled corners with a near-identical twin in the same image above which a
+    /// pair that is not accepted is reported as a repeated pattern. Judgement: ordinary scenes stay
+    /// well below; a tiled pattern is near 1.
+    /// </summary>
+    public double RepeatedPatternFraction { get; init; } = 0.3;
+
     /// <summary>Re-localise tie points at full resolution before the final polish.</summary>
     public bool Relocalize { get; init; } = true;
 

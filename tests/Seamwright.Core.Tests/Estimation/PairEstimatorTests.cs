@@ -9,7 +9,7 @@ public class PairEstimatorTests
     private static readonly ImageSize A = SyntheticSweepTests.SizeA;
     private static readonly ImageSize B = SyntheticSweepTests.SizeB;
 
-    private static SyntheticMatchSet Set(ulong seed, int count = 300, double outliers = 0.5, double noise = 1) =>
+    private static SyntheticMatchSet Set(ulong seed, int count = 200, double outliers = 0.5, double noise = 1) =>
         SyntheticMatches.Generate(SyntheticSweepTests.TruthFor(MotionModel.Homography), A, B, count, outliers, noise, seed);
 
     /// <summary>Everything but the timings, as one comparable string (round-trip number formatting).</summary>
@@ -31,9 +31,9 @@ public class PairEstimatorTests
     [Fact]
     public void Estimate_UnderParallelLoad_SameAsSequential()
     {
-        var sets = Enumerable.Range(0, 16).Select(i => Set((ulong)(50 + i))).ToArray();
+        var sets = Enumerable.Range(0, 6).Select(i => Set((ulong)(50 + i))).ToArray();
         var expected = sets.Select(s => Fingerprint(PairEstimator.Estimate(s.Matches, A, B, EstimationOptions.Default))).ToArray();
-        var actual = new string[sets.Length * 3];
+        var actual = new string[sets.Length * 2];
         Parallel.For(0, actual.Length, new ParallelOptions { MaxDegreeOfParallelism = 8 }, i =>
             actual[i] = Fingerprint(PairEstimator.Estimate(sets[i % sets.Length].Matches, A, B, EstimationOptions.Default)));
         for (int i = 0; i < actual.Length; i++)
@@ -61,7 +61,7 @@ public class PairEstimatorTests
         var set = Set(3, outliers: 0.7);
         var e = PairEstimator.Estimate(set.Matches, A, B, EstimationOptions.Default with { Sampler = SamplerKind.Uniform });
         Assert.Equal(PairStatus.Accepted, e.Status);
-        Assert.True(e.Consensus.Final >= 80);
+        Assert.True(e.Consensus.Final >= 50);
     }
 
     [Fact]

@@ -5,20 +5,6 @@ namespace Seamwright.Core.Tests.Synthetic;
 public class SyntheticRandomTests
 {
     [Fact]
-    public void NextUInt64_StateOneTwoThreeFour_MatchesReferenceVector()
-    {
-        // Reference: the xoshiro256** test vector of the rand_xoshiro crate for state [1, 2, 3, 4]
-        // (from memory), which the reference C code by Blackman and Vigna also produces.
-        ulong[] expected = [11520, 0, 1509978240, 1215971899390074240, 1216172134540287360, 607988272756665600,
-            16172922978634559625, 8476171486693032832, 10595114339597558777, 2904607092377533576];
-        var rng = SyntheticRandom.FromState(1, 2, 3, 4);
-        foreach (ulong e in expected)
-        {
-            Assert.Equal(e, rng.NextUInt64());
-        }
-    }
-
-    [Fact]
     public void NextGaussian_ManyDraws_HasUnitVarianceAndZeroMean()
     {
         var rng = new SyntheticRandom(42);

@@ -74,8 +74,8 @@ public class EstimateCommandTests
     public void Run_UnderParallelLoad_IdenticalJsonAsideTimings()
     {
         string expected = WithoutTimings(Run(DemoMatchFile.Path, "--json").Out);
-        var results = new string[12];
-        Parallel.For(0, results.Length, new ParallelOptions { MaxDegreeOfParallelism = 6 }, i => results[i] = WithoutTimings(Run(DemoMatchFile.Path, "--json").Out));
+        var results = new string[6];
+        Parallel.For(0, results.Length, new ParallelOptions { MaxDegreeOfParallelism = 3 }, i => results[i] = WithoutTimings(Run(DemoMatchFile.Path, "--json").Out));
         Assert.All(results, r => Assert.Equal(expected, r));
     }
 

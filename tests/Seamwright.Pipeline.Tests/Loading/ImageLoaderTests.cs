@@ -6,6 +6,7 @@ using SixLabors.ImageSharp.Formats.Tiff;
 using SixLabors.ImageSharp.Formats.Webp;
 using SixLabors.ImageSharp.Metadata.Profiles.Exif;
 using SixLabors.ImageSharp.PixelFormats;
+using SixLabors.ImageSharp.Processing;
 
 namespace Seamwright.Pipeline.Tests.Loading;
 
@@ -115,6 +116,49 @@ public sealed class ImageLoaderTests : IDisposable
         Assert.Equal(new Core.Geometry.ImageSize(40, 25), loaded.DisplaySize);
         Assert.Equal(new Core.Geometry.ImageSize(40, 25), loaded.Header.DisplaySize);
         Assert.Equal(display.Pixels, loaded.Image.Pixels);
+    }
+
+    [Theory]
+    [InlineData(2)]
+    [InlineData(5)]
+    [InlineData(6)]
+    [InlineData(7)]
+    [InlineData(8)]
+    public void Load_ExifOrientation_AgreesWithImageSharpAutoOrient(int orientation)
+    {
+        // Reference: ImageSharp's own AutoOrient processor on the same file.
+        var stored = TestFiles.Pattern(30, 20, 14);
+        string path = _folder.File($"auto-{orientation}.png");
+        using (var image = TestFiles.ToImage(stored))
+        {
+            image.Metadata.ExifProfile = new ExifProfile();
+            image.Metadata.ExifProfile.SetValue(ExifTag.Orientation, (ushort)orientation);
+            image.Save(path, new PngEncoder());
+        }
+        using var reference = Image.Load<L8>(path);
+        reference.Mutate(x => x.AutoOrient());
+        var loaded = new ImageLoader().Load(path);
+        Assert.Equal(reference.Width, loaded.Image.Width);
+        for (int y = 0; y < reference.Height; y++)
+        {
+            for (int x = 0; x < reference.Width; x++)
+            {
+                Assert.Equal(reference[x, y].PackedValue, loaded.Image[x, y]);
+            }
+        }
+    }
+
+    [Fact]
+    public void Load_DecodeTimeLimitExceeded_ThrowsTimeout()
+    {
+        string path = _folder.File("slow.png");
+        using (var image = TestFiles.ToImage(TestFiles.Pattern(1500, 1000, 15)))
+        {
+            image.Save(path, new PngEncoder());
+        }
+        var limits = new LoadLimits { DecodeTimeout = TimeSpan.FromTicks(1) };
+        var error = Assert.Throws<ImageLoadException>(() => new ImageLoader(limits).Load(path));
+        Assert.Equal(ImageLoadFailure.Timeout, error.Failure);
     }
 
     [Fact]
