@@ -169,7 +169,7 @@ public static class ConsensusRefiner
                     return BestConsensus > _before ? closed : $"bisection closed: no target above {_before} reached";
                 }
             }
-            return closed + $" (pass cap {options.MaxPasses})";
+            return options.MaxPasses > 1 ? closed + $" (pass cap {options.MaxPasses})" : closed;
         }
 
         /// <summary>The alternating search for target d, started from the best model.</summary>

@@ -41,7 +41,7 @@ public sealed record EstimationOptions
     /// <summary>
     /// PROSAC's T_N (Chum and Matas, CVPR 2005): samples after which PROSAC samples as RANSAC does.
     /// Default null = <see cref="MaxIterations"/>. The paper's 200000 (from memory) is far beyond
-    /// our cap, and with it PROSAC would still draw from the top quarter of 50 matches at the cap and
+    /// our cap: with it PROSAC would still draw from the top half of 51 matches at the cap and
     /// miss inliers ranked low (seen on the homogr set's ExtremeZoom pair).
     /// </summary>
     public int? ProsacGrowthHorizon { get; init; }

@@ -43,7 +43,7 @@ public static class PairDecision
 
         if (e.Transform is null)
         {
-            rejected.Add($"no {name} model could be estimated from the matches");
+            return new PairVerdict(PairStatus.Rejected, [$"no {name} model could be estimated from the matches"]);
         }
         if (e.SanityProblem is not null)
         {

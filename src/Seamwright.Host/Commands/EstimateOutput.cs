@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using System.Text.Encodings.Web;
 using System.Text.Json;
 using Seamwright.Core.Estimation;
 using Seamwright.Core.Geometry;
@@ -20,7 +21,9 @@ internal static class EstimateOutput
     {
         ArgumentNullException.ThrowIfNull(e);
         using var stream = new MemoryStream();
-        using (var w = new Utf8JsonWriter(stream))
+        // Relaxed escaping keeps reasons readable ("8 + 0.3 x n", not "8 \u002B 0.3"); the output is
+        // a terminal or a file, never HTML.
+        using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping }))
         {
             w.WriteStartObject();
             WriteEstimateFields(w, e);

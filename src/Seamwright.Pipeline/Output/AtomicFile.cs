@@ -29,20 +29,78 @@ public static class AtomicFile
     public static void WriteAllText(string path, string text) =>
         WriteAllBytes(path, new System.Text.UTF8Encoding(encoderShouldEmitUTF8Identifier: false).GetBytes(text));
 
+    /// <summary>Alias of <see cref="TemporarySuffix"/>.</summary>
+    public const string TempSuffix = TemporarySuffix;
+
+    /// <summary>
+    /// With <paramref name="syncDirectory"/> false the folder is not fsynced: the caller writes many
+    /// files and calls <see cref="SyncDirectory"/> once per folder before anything that depends on
+    /// them (a manifest) is written.
+    /// </summary>
+    public static void WriteAllBytes(string path, ReadOnlySpan<byte> bytes, bool syncDirectory)
+    {
+        byte[] copy = bytes.ToArray();
+        Write(path, stream => stream.Write(copy), flushToDisk: true, syncDirectory);
+    }
+
+    /// <summary>
+    /// Atomic (a reader sees the old or the whole new file) but not durable: no flush to disk. For
+    /// caches, whose entries are checked on read and rebuilt when empty or damaged after a power cut.
+    /// </summary>
+    public static void WriteAllBytesNotDurable(string path, ReadOnlySpan<byte> bytes)
+    {
+        byte[] copy = bytes.ToArray();
+        Write(path, stream => stream.Write(copy), flushToDisk: false, syncDirectory: false);
+    }
+
+    /// <summary>Makes the renames inside <paramref name="folder"/> durable (fsync of the folder on POSIX).</summary>
+    public static void SyncDirectory(string folder) => FlushFolder(folder);
+
+    /// <summary>Deletes temporary files left by an interrupted write under <paramref name="root"/>; returns how many.</summary>
+    public static int SweepTemporaries(string root)
+    {
+        if (!Directory.Exists(root))
+        {
+            return 0;
+        }
+        int n = 0;
+        foreach (var f in Directory.EnumerateFiles(root, "*" + TemporarySuffix, SearchOption.AllDirectories))
+        {
+            if (IsTemporary(f))
+            {
+                try
+                {
+                    File.Delete(f);
+                    n++;
+                }
+                catch (IOException)
+                {
+                }
+                catch (UnauthorizedAccessException)
+                {
+                }
+            }
+        }
+        return n;
+    }
+
     /// <summary>Writes through <paramref name="write"/> into a temporary file, then replaces <paramref name="path"/>.</summary>
-    public static void Write(string path, Action<Stream> write)
+    public static void Write(string path, Action<Stream> write) => Write(path, write, flushToDisk: true, syncDirectory: true);
+
+    private static void Write(string path, Action<Stream> write, bool flushToDisk, bool syncDirectory)
     {
         ArgumentException.ThrowIfNullOrEmpty(path);
         ArgumentNullException.ThrowIfNull(write);
         string full = Path.GetFullPath(path);
         string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
+        Directory.CreateDirectory(folder);
         string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.{Guid.NewGuid():N}{TemporarySuffix}");
         try
         {
             using (var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536))
             {
                 write(stream);
-                stream.Flush(flushToDisk: true);
+                stream.Flush(flushToDisk);
             }
             File.Move(temp, full, overwrite: true);
         }
@@ -51,7 +109,10 @@ public static class AtomicFile
             TryDelete(temp);
             throw;
         }
-        FlushFolder(folder);
+        if (syncDirectory)
+        {
+            FlushFolder(folder);
+        }
     }
 
     private static void TryDelete(string temp)

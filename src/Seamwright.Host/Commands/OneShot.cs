@@ -1,0 +1,222 @@
+using Seamwright.Host.Configuration;
+using Seamwright.Host.Terminal;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Processing;
+using Seamwright.Pipeline.Sets;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Pipeline.State;
+using Serilog;
+using Serilog.Formatting.Compact;
+using Spectre.Console;
+
+namespace Seamwright.Host.Commands;
+
+/// <summary>What a one-shot pass does: <c>run</c> (every set not up to date) or <c>rerun</c> (the same, limited to a path, optionally forced or dry).</summary>
+internal sealed record OneShotRequest(string Folder, string? Output, string? ConfigFile, string[] Overrides, string? Within, bool DryRun, bool Force);
+
+/// <summary>One pass over a root: discover sets, skip the unchanged, process the rest, print a summary, return the exit code.</summary>
+internal static class OneShot
+{
+    public static int Execute(OneShotRequest req)
+    {
+        SeamwrightOptions options;
+        try
+        {
+            options = SettingsLoader.Bind(SettingsLoader.Build(req.ConfigFile, req.Overrides));
+        }
+        catch (SettingsException e)
+        {
+            System.Console.Error.WriteLine("seamwright: " + e.Message);
+            return ExitCodes.BadArguments;
+        }
+        if (!Directory.Exists(req.Folder))
+        {
+            System.Console.Error.WriteLine($"seamwright: the folder {req.Folder} does not exist");
+            return ExitCodes.BadArguments;
+        }
+        var root = options.RootFor(req.Folder, req.Output is null ? null : Path.GetFullPath(req.Output));
+        string output = root.EffectiveOutput;
+        if (IsUnder(Path.GetFullPath(req.Folder), output) )
+        {
+            System.Console.Error.WriteLine($"seamwright: the output folder {output} cannot contain the input folder");
+            return ExitCodes.BadArguments;
+        }
+        IPairEngine engine;
+        try
+        {
+            engine = EngineFactory.Create(options.Engine);
+        }
+        catch (NotSupportedException e)
+        {
+            System.Console.Error.WriteLine("seamwright: " + e.Message);
+            return ExitCodes.Fatal;
+        }
+
+        bool interactive = RunProgress.TerminalIsInteractive();
+        using var log = new LoggerConfiguration()
+            .MinimumLevel.Debug()
+            .Enrich.WithProperty("Command", req.DryRun ? "rerun --dry-run" : "run")
+            .WriteTo.File(new CompactJsonFormatter(), Path.Combine(output, StateStore.StateFolder, "logs", "seamwright-.log"),
+                rollingInterval: RollingInterval.Day, retainedFileCountLimit: 31, shared: true)
+            .CreateLogger();
+        var progress = new RunProgress(log, interactive);
+        var started = System.Diagnostics.Stopwatch.StartNew();
+        RootSession session;
+        try
+        {
+            session = RootSession.Open(root, options, engine, new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20),
+                new SemaphoreSlim(options.Service.MaxParallelJobs), progress);
+        }
+        catch (OutputRootBusyException e)
+        {
+            System.Console.Error.WriteLine("seamwright: " + e.Message);
+            return ExitCodes.Fatal;
+        }
+        using (session)
+        {
+            Announce(session, log);
+            var all = session.Catalog.Discover();
+            var sets = req.Within is null ? all : all.Where(s => InScope(session, s, req.Within)).ToList();
+            if (req.Within is not null && sets.Count == 0)
+            {
+                System.Console.Error.WriteLine($"seamwright: no set found under {req.Within}");
+                return ExitCodes.BadArguments;
+            }
+            var todo = new List<(SetInputs Set, string Why)>();
+            foreach (var s in sets)
+            {
+                string? why = req.Force ? "forced" : WhyRedo(session.Context, s);
+                if (why is not null)
+                {
+                    todo.Add((s, why));
+                }
+            }
+            if (req.DryRun)
+            {
+                System.Console.Out.WriteLine(todo.Count == 0
+                    ? $"Nothing would be redone: all {sets.Count} sets are up to date."
+                    : $"{todo.Count} of {sets.Count} sets would be redone:");
+                foreach (var (s, why) in todo)
+                {
+                    System.Console.Out.WriteLine($"  {s.SetId}\t{why}");
+                }
+                return ExitCodes.Ok;
+            }
+            if (todo.Count == 0)
+            {
+                System.Console.Out.WriteLine($"Nothing to do: all {sets.Count} sets are unchanged since their last run (inputs and settings). Outputs in {output}");
+                log.Information("Nothing to do: {Sets} sets unchanged", sets.Count);
+            }
+            var outcomes = new System.Collections.Concurrent.ConcurrentDictionary<string, SetOutcome>(StringComparer.Ordinal);
+            progress.Run(() =>
+            {
+                var processor = new SetProcessor(session.Context);
+                Parallel.ForEach(todo, new ParallelOptions { MaxDegreeOfParallelism = options.Service.MaxParallelSets }, item =>
+                {
+                    outcomes[item.Set.SetId] = processor.Process(item.Set, incomplete: false, CancellationToken.None);
+                });
+            });
+            int code = Summarize(session, sets, outcomes, started.Elapsed, output);
+            log.Information("Run finished in {Seconds:0.0} s with exit code {Code}", started.Elapsed.TotalSeconds, code);
+            return code;
+        }
+    }
+
+    /// <summary>Null when the set is up to date; otherwise why it must be (re)done, in words.</summary>
+    public static string? WhyRedo(ProcessingContext ctx, SetInputs set)
+    {
+        var rec = ctx.Store.GetSet(set.SetId);
+        if (rec is null || rec.DoneRun is null)
+        {
+            return "never processed";
+        }
+        if (rec.State == SetStates.Failed)
+        {
+            return "the last run failed: " + rec.Reason;
+        }
+        if (rec.Fingerprint != ctx.FingerprintFor(set.Profile))
+        {
+            return $"settings changed (fingerprint {rec.Fingerprint} -> {ctx.FingerprintFor(set.Profile)})";
+        }
+        if (rec.Inputs != set.InputsDigest())
+        {
+            return "input files added, replaced or removed";
+        }
+        return ctx.IsUpToDate(set) ? null : rec.State != SetStates.Done ? "the last run did not finish" : "its manifest is missing";
+    }
+
+    private static bool InScope(RootSession session, SetInputs set, string within)
+    {
+        string full = Path.GetFullPath(within).TrimEnd('/', '\\');
+        if (full == session.Catalog.RootPath)
+        {
+            return true;
+        }
+        string rel = session.Catalog.RootRelative(full);
+        return set.SetId == rel || set.SetId.StartsWith(rel + "/", StringComparison.Ordinal)
+            || set.Files.Any(f => f.FullPath.StartsWith(full + Path.DirectorySeparatorChar, StringComparison.Ordinal));
+    }
+
+    internal static void Announce(RootSession session, ILogger log)
+    {
+        if (session.SweptTemporaries > 0)
+        {
+            log.Warning("Removed {Count} temporary files left by an interrupted run", session.SweptTemporaries);
+        }
+        if (session.RecoveredSets.Count > 0)
+        {
+            log.Warning("Resuming after an interruption: {Sets} sets had unfinished runs", session.RecoveredSets.Count);
+        }
+        if (session.Context.Log.DroppedBytes > 0)
+        {
+            log.Warning("Dropped a torn last line ({Bytes} bytes) from {Log}", session.Context.Log.DroppedBytes, session.Context.Log.Path);
+        }
+        if (session.OutputOnNetworkShare)
+        {
+            log.Warning("The output root {Output} is on a network share; the state database needs local disk to be safe", session.Context.OutputRoot);
+            System.Console.Error.WriteLine($"warning: the output root {session.Context.OutputRoot} is on a network share; keep the state on local disk");
+        }
+    }
+
+    private static int Summarize(RootSession session, IReadOnlyList<SetInputs> sets, IReadOnlyDictionary<string, SetOutcome> outcomes, TimeSpan elapsed, string output)
+    {
+        bool plain = System.Console.IsOutputRedirected;
+        if (plain)
+        {
+            AnsiConsole.Profile.Width = 160; // a log file or pipe has no width; keep the table on one line per set
+        }
+        var table = new Table().Border(plain ? TableBorder.Ascii : TableBorder.Rounded)
+            .AddColumn("Set").AddColumn("This run").AddColumn(new TableColumn("Run").RightAligned())
+            .AddColumn(new TableColumn("Images").RightAligned()).AddColumn(new TableColumn("Pairs").RightAligned())
+            .AddColumn(new TableColumn("Accepted").RightAligned()).AddColumn(new TableColumn("Weak").RightAligned())
+            .AddColumn(new TableColumn("Rejected").RightAligned()).AddColumn(new TableColumn("Bad files").RightAligned());
+        bool problems = false;
+        foreach (var s in sets)
+        {
+            var rec = session.Context.Store.GetSet(s.SetId);
+            var run = rec?.DoneRun is long id ? session.Context.Store.GetRun(id) : null;
+            string what = outcomes.TryGetValue(s.SetId, out var o)
+                ? o.Kind switch { SetOutcomeKind.Done => "processed", SetOutcomeKind.Changed => "changed, retry", _ => "FAILED" }
+                : "unchanged";
+            if (o is { Kind: not SetOutcomeKind.Done } || rec?.State == SetStates.Failed)
+            {
+                problems = true;
+            }
+            var sum = run?.Summary;
+            if (sum is null || sum.Weak + sum.Rejected + sum.BadFiles > 0 || sum.Incomplete)
+            {
+                problems = true;
+            }
+            table.AddRow(Markup.Escape(s.SetId), what, run?.RunId.ToString(System.Globalization.CultureInfo.InvariantCulture) ?? "-",
+                N(sum?.Images), N(sum?.Pairs), N(sum?.Accepted), N(sum?.Weak), N(sum?.Rejected), N(sum?.BadFiles));
+        }
+        AnsiConsole.Write(table);
+        System.Console.Out.WriteLine($"{outcomes.Count} sets processed, {sets.Count - outcomes.Count} unchanged, in {elapsed.TotalSeconds:0.0} s. Outputs in {output}");
+        return problems ? ExitCodes.FinishedWithProblems : ExitCodes.Ok;
+    }
+
+    private static string N(int? v) => v?.ToString(System.Globalization.CultureInfo.InvariantCulture) ?? "-";
+
+    private static bool IsUnder(string path, string folder) =>
+        path.TrimEnd('/', '\\') == folder.TrimEnd('/', '\\') || path.StartsWith(folder.TrimEnd('/', '\\') + Path.DirectorySeparatorChar, StringComparison.Ordinal);
+}

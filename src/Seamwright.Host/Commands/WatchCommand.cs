@@ -1,0 +1,150 @@
+using Microsoft.Extensions.Configuration;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Primitives;
+using Seamwright.Host.Configuration;
+using Seamwright.Host.Service;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Processing;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Pipeline.State;
+using Serilog;
+using Serilog.Settings.Configuration;
+
+namespace Seamwright.Host.Commands;
+
+/// <summary>
+/// <c>seamwright watch [--config FILE] [ROOT [--output DIR]]</c>: the service. Watches the configured
+/// roots (or ROOT), processes every set when complete, and keeps going until stopped. Runs under
+/// a Windows service manager or systemd (notify) as well as from a shell. Exit code 0 on a clean
+/// stop, 2 for bad settings, 1 for a fatal error (so the service manager restarts it).
+/// </summary>
+internal static class WatchCommand
+{
+    public const string Usage = "watch [ROOT [--output DIR]] [--config FILE]";
+
+    public static int Execute(string[] args)
+    {
+        CommandArgs a;
+        IConfiguration config;
+        SeamwrightOptions options;
+        try
+        {
+            a = CommandArgs.Parse(args, ["--output", "--config"], []);
+            if (a.Positional.Count > 1)
+            {
+                return RunCommand.Bad("watch takes at most one ROOT: seamwright " + Usage);
+            }
+            config = SettingsLoader.Build(a.Value("--config"), a.Overrides.ToArray());
+            options = SettingsLoader.Bind(config);
+            ApplyCommandLineRoot(options, a);
+            if (options.Roots.Count == 0)
+            {
+                return RunCommand.Bad("no root to watch: configure Seamwright:Roots or give ROOT: seamwright " + Usage);
+            }
+        }
+        catch (SettingsException e)
+        {
+            return RunCommand.Bad(e.Message);
+        }
+
+        var builder = Microsoft.Extensions.Hosting.Host.CreateApplicationBuilder(new HostApplicationBuilderSettings
+        {
+            DisableDefaults = true,
+            ContentRootPath = AppContext.BaseDirectory,
+        });
+        builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
+        builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
+        builder.Services.AddSystemd();
+        builder.Services.Configure<HostOptions>(o =>
+        {
+            o.ShutdownTimeout = TimeSpan.FromSeconds(options.Service.ShutdownSeconds);
+            o.BackgroundServiceExceptionBehavior = BackgroundServiceExceptionBehavior.StopHost;
+        });
+        var readerOptions = new ConfigurationReaderOptions(
+            typeof(ConsoleLoggerConfigurationExtensions).Assembly, typeof(FileLoggerConfigurationExtensions).Assembly,
+            typeof(Serilog.Formatting.Compact.CompactJsonFormatter).Assembly);
+        // A settings file without a Serilog section still logs to the console.
+        Log.Logger = builder.Configuration.GetSection("Serilog").Exists()
+            ? new LoggerConfiguration().ReadFrom.Configuration(builder.Configuration, readerOptions).CreateLogger()
+            : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
+                .WriteTo.Console().CreateLogger();
+        builder.Services.AddSerilog(Log.Logger, dispose: false);
+
+        var sessions = new List<RootSession>();
+        try
+        {
+            var engine = EngineFactory.Create(options.Engine);
+            var budget = new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20);
+            var slots = new SemaphoreSlim(options.Service.MaxParallelJobs);
+            var observer = new ServiceObserver(Log.Logger);
+            foreach (var root in options.Roots)
+            {
+                var session = RootSession.Open(root, options, engine, budget, slots, observer);
+                sessions.Add(session);
+                OneShot.Announce(session, Log.Logger);
+                Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);
+            }
+            var runtime = new ServiceRuntime(sessions, options);
+            builder.Services.AddSingleton(runtime);
+            builder.Services.AddHostedService<WatcherService>();
+            builder.Services.AddHostedService<SchedulerService>();
+            builder.Services.AddHostedService<WorkerService>();
+            using var host = builder.Build();
+            using var reload = ChangeToken.OnChange(((IConfiguration)builder.Configuration).GetReloadToken, () => Reload(builder.Configuration, a, runtime));
+            host.Run();
+            if (runtime.Fatal is not null)
+            {
+                Log.Fatal(runtime.Fatal, "Stopped by a fatal error");
+                return ExitCodes.Fatal;
+            }
+            Log.Information("Stopped");
+            return ExitCodes.Ok;
+        }
+        catch (Exception e) when (e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
+        {
+            Log.Fatal(e, "Cannot start: {Message}", e.Message);
+            System.Console.Error.WriteLine("seamwright: " + e.Message);
+            return ExitCodes.Fatal;
+        }
+        finally
+        {
+            foreach (var s in sessions)
+            {
+                s.Dispose();
+            }
+            Log.CloseAndFlush();
+        }
+    }
+
+    private static void ApplyCommandLineRoot(SeamwrightOptions options, CommandArgs a)
+    {
+        if (a.Positional.Count == 1)
+        {
+            var root = options.RootFor(a.Positional[0], a.Value("--output") is { } o ? Path.GetFullPath(o) : null);
+            options.Roots.Clear();
+            options.Roots.Add(root);
+        }
+    }
+
+    /// <summary>A settings file change: bind and validate; a bad file is logged and ignored (the old settings stay).</summary>
+    private static void Reload(IConfiguration config, CommandArgs a, ServiceRuntime runtime)
+    {
+        try
+        {
+            var fresh = SettingsLoader.Bind(config);
+            ApplyCommandLineRoot(fresh, a);
+            runtime.Options = fresh;
+            foreach (var s in runtime.Roots)
+            {
+                s.Context.Options = fresh;
+            }
+            runtime.SettingsChanged = true;
+            Log.Information("Settings reloaded");
+        }
+        catch (SettingsException e)
+        {
+            Log.Error("Settings reload ignored: {Message}", e.Message);
+        }
+    }
+}

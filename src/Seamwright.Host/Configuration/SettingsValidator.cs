@@ -1,0 +1,130 @@
+using System.Text.RegularExpressions;
+using Microsoft.Extensions.Options;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Settings;
+
+namespace Seamwright.Host.Configuration;
+
+/// <summary>Checks every setting against its allowed range; each message names the setting's full key.</summary>
+internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
+{
+    public ValidateOptionsResult Validate(string? name, SeamwrightOptions options)
+    {
+        var errors = Check(options);
+        return errors.Count == 0 ? ValidateOptionsResult.Success : ValidateOptionsResult.Fail(errors);
+    }
+
+    public static List<string> Check(SeamwrightOptions o)
+    {
+        var e = new List<string>();
+        const string S = "Seamwright";
+        Range(e, $"{S}:Service:RescanSeconds", o.Service.RescanSeconds, 1, 86400, "seconds");
+        Range(e, $"{S}:Service:PollMilliseconds", o.Service.PollMilliseconds, 50, 60000, "milliseconds");
+        Range(e, $"{S}:Service:StableSeconds", o.Service.StableSeconds, 0, 3600, "seconds");
+        Range(e, $"{S}:Service:MaxParallelSets", o.Service.MaxParallelSets, 1, 64, "sets");
+        Range(e, $"{S}:Service:MaxParallelJobs", o.Service.MaxParallelJobs, 1, 256, "jobs");
+        Range(e, $"{S}:Service:MemoryBudgetMegabytes", o.Service.MemoryBudgetMegabytes, 16, 1048576, "MB");
+        Range(e, $"{S}:Service:QueueCapacity", o.Service.QueueCapacity, 16, 1000000, "entries");
+        Range(e, $"{S}:Service:ShutdownSeconds", o.Service.ShutdownSeconds, 1, 600, "seconds");
+        Range(e, $"{S}:Limits:MaxFileMegabytes", o.Limits.MaxFileMegabytes, 0.001, 1048576, "MB");
+        Range(e, $"{S}:Limits:MaxMegapixels", o.Limits.MaxMegapixels, 0.0001, 100000, "megapixels");
+        if (!EngineFactory.Names.Contains(o.Engine, StringComparer.Ordinal))
+        {
+            e.Add($"{S}:Engine is '{o.Engine}'; allowed: {string.Join(", ", EngineFactory.Names)}");
+        }
+        if (!o.Profiles.ContainsKey("default"))
+        {
+            o.Profiles["default"] = new ProfileSettings();
+        }
+        foreach (var (name, p) in o.Profiles)
+        {
+            string k = $"{S}:Profiles:{name}";
+            Range(e, $"{k}:Pairing:NeighbourSpan", p.Pairing.NeighbourSpan, 2, 64, "images (at least 2 so that loops exist)");
+            Range(e, $"{k}:Pairing:AllMaxPartners", p.Pairing.AllMaxPartners, 1, 1000, "images");
+            Range(e, $"{k}:Pairing:AllMinSimilarity", p.Pairing.AllMinSimilarity, -1, 1, "(cosine)");
+            Regex(e, $"{k}:Pairing:GridPattern", p.Pairing.GridPattern, ["row", "col"]);
+            Range(e, $"{k}:Completion:QuietSeconds", p.Completion.QuietSeconds, 0, 86400, "seconds");
+            Range(e, $"{k}:Completion:ExpectedCount", p.Completion.ExpectedCount, 0, 1000000, "images (0 = not used)");
+            Range(e, $"{k}:Completion:MaxWaitSeconds", p.Completion.MaxWaitSeconds, 1, 31 * 86400, "seconds");
+            if (p.Completion.ReadyMarker.IndexOfAny(['/', '\\']) >= 0)
+            {
+                e.Add($"{k}:Completion:ReadyMarker is '{p.Completion.ReadyMarker}'; allowed: a file name without folders, or empty");
+            }
+            Range(e, $"{k}:Features:WorkingMegapixels", p.Features.WorkingMegapixels, 0.05, 100, "megapixels");
+            Range(e, $"{k}:Features:MaxKeypoints", p.Features.MaxKeypoints, 16, 100000, "keypoints");
+            for (int i = 0; i < p.Features.Masks.Count; i++)
+            {
+                var m = p.Features.Masks[i];
+                if (m.X < 0 || m.Y < 0 || m.Width <= 0 || m.Height <= 0 || m.X + m.Width > 1 || m.Y + m.Height > 1)
+                {
+                    e.Add($"{k}:Features:Masks:{i} is ({m.X}, {m.Y}, {m.Width}, {m.Height}); allowed: fractions of the image with X, Y >= 0, Width, Height > 0, X + Width <= 1, Y + Height <= 1");
+                }
+            }
+            Range(e, $"{k}:Estimation:ThresholdPx", p.Estimation.ThresholdPx, 0.1, 100, "pixels");
+            Range(e, $"{k}:Estimation:RatioTest", p.Estimation.RatioTest, 0.1, 1.0, "(ratio)");
+            Range(e, $"{k}:Estimation:Confidence", p.Estimation.Confidence, 0.5, 0.999999, "(probability)");
+            Range(e, $"{k}:Estimation:MaxIterations", p.Estimation.MaxIterations, 10, 10000000, "iterations");
+            foreach (var ext in p.Extensions)
+            {
+                if (!ext.StartsWith('.') || ext.Length < 2)
+                {
+                    e.Add($"{k}:Extensions contains '{ext}'; allowed: extensions with a leading dot, like \".jpg\"");
+                }
+            }
+        }
+        for (int i = 0; i < o.Roots.Count; i++)
+        {
+            CheckRoot(e, $"{S}:Roots:{i}", o.Roots[i], o, requirePath: true);
+        }
+        CheckRoot(e, $"{S}:Run", o.Run, o, requirePath: false);
+        return e;
+    }
+
+    private static void CheckRoot(List<string> e, string k, RootSettings r, SeamwrightOptions o, bool requirePath)
+    {
+        if (requirePath && string.IsNullOrWhiteSpace(r.Path))
+        {
+            e.Add($"{k}:Path is empty; allowed: the folder to watch");
+        }
+        if (!o.Profiles.ContainsKey(r.Profile))
+        {
+            e.Add($"{k}:Profile is '{r.Profile}'; allowed: one of the profiles ({string.Join(", ", o.Profiles.Keys)})");
+        }
+        for (int j = 0; j < r.ProfileRules.Count; j++)
+        {
+            if (!o.Profiles.ContainsKey(r.ProfileRules[j].Profile))
+            {
+                e.Add($"{k}:ProfileRules:{j}:Profile is '{r.ProfileRules[j].Profile}'; allowed: one of the profiles ({string.Join(", ", o.Profiles.Keys)})");
+            }
+        }
+        if (!string.IsNullOrEmpty(r.SetPattern))
+        {
+            Regex(e, $"{k}:SetPattern", r.SetPattern, r.SetKeyGroups.ToArray());
+        }
+    }
+
+    private static void Range(List<string> e, string key, double value, double min, double max, string unit)
+    {
+        if (!(value >= min && value <= max))
+        {
+            e.Add($"{key} is {value}; allowed: {min} to {max} {unit}");
+        }
+    }
+
+    private static void Regex(List<string> e, string key, string pattern, string[] groups)
+    {
+        try
+        {
+            var rx = new Regex(pattern, RegexOptions.CultureInvariant, TimeSpan.FromSeconds(1));
+            var names = rx.GetGroupNames();
+            foreach (var g in groups.Where(g => !names.Contains(g)))
+            {
+                e.Add($"{key} has no named group '{g}'; allowed: a regular expression with the groups {string.Join(", ", groups.Select(x => "(?<" + x + ">...)"))}");
+            }
+        }
+        catch (ArgumentException x)
+        {
+            e.Add($"{key} is not a valid regular expression: {x.Message}");
+        }
+    }
+}

@@ -1,0 +1,47 @@
+namespace Seamwright.Host.Operations;
+
+/// <summary>
+/// The health figures of a running service at one moment: what `seamwright status` shows, what
+/// the periodic log line carries, and what the heartbeat file holds (JSON, camelCase).
+/// </summary>
+internal sealed record OperationsFigures
+{
+    public required DateTimeOffset At { get; init; }
+    public required int ProcessId { get; init; }
+    public required bool Healthy { get; init; }
+    public IReadOnlyList<string> Problems { get; init; } = [];
+
+    /// <summary>Sets waiting for a worker (complete but not yet processed).</summary>
+    public int QueueDepth { get; init; }
+
+    /// <summary>From a set's last file arriving to its manifest, over the recent sets; seconds.</summary>
+    public double? ArrivalToOutputMedianSeconds { get; init; }
+    public double? ArrivalToOutputP95Seconds { get; init; }
+    public int LatencySamples { get; init; }
+
+    public long Accepted { get; init; }
+    public long Weak { get; init; }
+    public long Rejected { get; init; }
+    public double? AcceptedRate { get; init; }
+    public double? WeakRate { get; init; }
+    public double? RejectedRate { get; init; }
+    public string? RejectionDrift { get; init; }
+
+    /// <summary>Sets waiting past their maximum wait, with how long.</summary>
+    public IReadOnlyList<string> StuckSets { get; init; } = [];
+
+    /// <summary>Quarantined files with their reasons.</summary>
+    public IReadOnlyList<string> Quarantined { get; init; } = [];
+
+    public long DecodeJobs { get; init; }
+    public long WorkerKills { get; init; }
+    public long PeakWorkerMegabytes { get; init; }
+
+    public bool IntakePaused { get; init; }
+    public string? PauseReason { get; init; }
+
+    /// <summary>Per watched root: last canary delivery and how often its watcher was recreated.</summary>
+    public IReadOnlyList<CanaryState> Canaries { get; init; } = [];
+
+    public long RigDeviations { get; init; }
+}

@@ -1,0 +1,71 @@
+using System.Threading.Channels;
+using Seamwright.Pipeline.Processing;
+using Seamwright.Pipeline.Sets;
+using Seamwright.Pipeline.Settings;
+
+namespace Seamwright.Host.Service;
+
+/// <summary>A change hint from a watcher: a path under a root, or a request to rescan the root.</summary>
+internal readonly record struct WatchHint(int Root, string? Path);
+
+/// <summary>A complete set handed to the workers.</summary>
+internal sealed record SetJob(int Root, SetInputs Set, bool Incomplete);
+
+/// <summary>A worker's report back to the scheduler.</summary>
+internal sealed record SetJobResult(int Root, SetOutcome Outcome);
+
+/// <summary>
+/// What the service loops share: the opened roots, the bounded channels linking them
+/// (watchers -> scheduler -> workers -> scheduler), the current settings, and the first fatal
+/// error (which makes the process exit non-zero).
+/// </summary>
+internal sealed class ServiceRuntime
+{
+    private int _rescanRequested;
+
+    public ServiceRuntime(IReadOnlyList<RootSession> roots, SeamwrightOptions options)
+    {
+        Roots = roots;
+        Options = options;
+        int cap = options.Service.QueueCapacity;
+        Hints = Channel.CreateBounded<WatchHint>(new BoundedChannelOptions(cap) { FullMode = BoundedChannelFullMode.DropWrite, SingleReader = true });
+        Jobs = Channel.CreateBounded<SetJob>(new BoundedChannelOptions(Math.Max(1, options.Service.MaxParallelSets)) { SingleWriter = true });
+        Results = Channel.CreateBounded<SetJobResult>(new BoundedChannelOptions(cap) { SingleReader = true });
+    }
+
+    public IReadOnlyList<RootSession> Roots { get; }
+
+    public SeamwrightOptions Options { get; set; }
+
+    public Channel<WatchHint> Hints { get; }
+
+    public Channel<SetJob> Jobs { get; }
+
+    public Channel<SetJobResult> Results { get; }
+
+    public Exception? Fatal { get; private set; }
+
+    /// <summary>Set when the settings were reloaded; the scheduler re-checks every set's fingerprint.</summary>
+    public volatile bool SettingsChanged;
+
+    /// <summary>O(1) hint from a watcher thread; when the channel is full the event is replaced by a full rescan.</summary>
+    public void Hint(int root, string path)
+    {
+        if (!Hints.Writer.TryWrite(new WatchHint(root, path)))
+        {
+            RequestRescan();
+        }
+    }
+
+    public void RequestRescan() => Interlocked.Exchange(ref _rescanRequested, 1);
+
+    public bool TakeRescanRequest() => Interlocked.Exchange(ref _rescanRequested, 0) == 1;
+
+    public void SetFatal(Exception e)
+    {
+        lock (this)
+        {
+            Fatal ??= e;
+        }
+    }
+}

@@ -1,0 +1,54 @@
+using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Logging;
+using Seamwright.Pipeline.Processing;
+
+namespace Seamwright.Host.Service;
+
+/// <summary>
+/// Takes complete sets from the bounded job channel, processes up to MaxParallelSets at once,
+/// and reports each outcome back to the scheduler. A set's failure is recorded and never stops
+/// the service; only a failure of the loop itself does (and the process then exits non-zero).
+/// </summary>
+internal sealed partial class WorkerService(ServiceRuntime runtime, IHostApplicationLifetime lifetime, ILogger<WorkerService> log) : BackgroundService
+{
+    protected override async Task ExecuteAsync(CancellationToken stoppingToken)
+    {
+        try
+        {
+            int n = runtime.Options.Service.MaxParallelSets;
+            var loops = Enumerable.Range(0, n).Select(_ => Task.Run(() => Loop(stoppingToken), stoppingToken)).ToArray();
+            await Task.WhenAll(loops).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException) when (stoppingToken.IsCancellationRequested)
+        {
+        }
+        catch (Exception e)
+        {
+            LogFatal(log, e);
+            runtime.SetFatal(e);
+            lifetime.StopApplication();
+        }
+    }
+
+    private async Task Loop(CancellationToken stop)
+    {
+        await foreach (var job in runtime.Jobs.Reader.ReadAllAsync(stop).ConfigureAwait(false))
+        {
+            var ctx = runtime.Roots[job.Root].Context;
+            ctx.Options = runtime.Options;
+            SetOutcome outcome;
+            try
+            {
+                outcome = new SetProcessor(ctx).Process(job.Set, job.Incomplete, stop);
+            }
+            catch (OperationCanceledException) when (stop.IsCancellationRequested)
+            {
+                return; // the run was recorded as abandoned; the set is redone after restart
+            }
+            await runtime.Results.Writer.WriteAsync(new SetJobResult(job.Root, outcome), stop).ConfigureAwait(false);
+        }
+    }
+
+    [LoggerMessage(Level = LogLevel.Critical, Message = "The worker loop failed")]
+    private static partial void LogFatal(ILogger logger, Exception error);
+}

@@ -1,0 +1,38 @@
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Output;
+
+namespace Seamwright.Pipeline.Processing;
+
+/// <summary>
+/// Per-image analyses on disk, keyed by the image's SHA-256 and the feature-settings fingerprint,
+/// under <c>.seamwright/features/&lt;fingerprint&gt;/&lt;hash[0..2]&gt;/&lt;hash&gt;.bin</c>. Entries are written
+/// atomically but not flushed (a cache); an entry that fails to decode is treated as absent and rewritten.
+/// </summary>
+public sealed class FeatureCache(string outputRoot, IPairEngine engine)
+{
+    private readonly string _folder = Path.Combine(outputRoot, State.StateStore.StateFolder, "features");
+
+    public bool TryGet(string hash, string featureFingerprint, out ImageAnalysis analysis)
+    {
+        string path = PathOf(hash, featureFingerprint);
+        analysis = null!;
+        if (!File.Exists(path))
+        {
+            return false;
+        }
+        try
+        {
+            analysis = engine.Decode(File.ReadAllBytes(path));
+            return true;
+        }
+        catch (Exception e) when (e is InvalidDataException or IOException or ArgumentException or IndexOutOfRangeException)
+        {
+            return false;
+        }
+    }
+
+    public void Put(string hash, string featureFingerprint, ImageAnalysis analysis) =>
+        AtomicFile.WriteAllBytesNotDurable(PathOf(hash, featureFingerprint), engine.Encode(analysis));
+
+    private string PathOf(string hash, string fp) => Path.Combine(_folder, fp, hash[..2], hash + ".bin");
+}

@@ -1,0 +1,52 @@
+using Seamwright.Core.Estimation;
+
+namespace Seamwright.Pipeline.Processing;
+
+/// <summary>Progress and problems of set processing, reported to the host (logging, progress display).</summary>
+public interface IProcessingObserver
+{
+    void SetStarted(string setId, long runId, int images);
+
+    void ImageDone(string setId, string image, bool fromCache);
+
+    void BadFile(string setId, string image, string reason);
+
+    void PairsPlanned(string setId, int pairs);
+
+    void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons);
+
+    void SetFinished(SetOutcome outcome);
+}
+
+/// <summary>An observer that ignores everything.</summary>
+public sealed class NullObserver : IProcessingObserver
+{
+    public static readonly NullObserver Instance = new();
+
+    public void SetStarted(string setId, long runId, int images) { }
+
+    public void ImageDone(string setId, string image, bool fromCache) { }
+
+    public void BadFile(string setId, string image, string reason) { }
+
+    public void PairsPlanned(string setId, int pairs) { }
+
+    public void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons) { }
+
+    public void SetFinished(SetOutcome outcome) { }
+}
+
+/// <summary>What became of one set.</summary>
+public enum SetOutcomeKind
+{
+    /// <summary>Processed; outputs and manifest written.</summary>
+    Done,
+    /// <summary>Inputs and settings unchanged since the last finished run: nothing done.</summary>
+    Unchanged,
+    /// <summary>An input changed while the set was being processed; the run was abandoned and the set waits again.</summary>
+    Changed,
+    /// <summary>The run failed as a whole (reason given); the set is recorded as failed.</summary>
+    Failed,
+}
+
+public sealed record SetOutcome(string SetId, SetOutcomeKind Kind, long? RunId, State.RunSummary? Summary, string? Reason);

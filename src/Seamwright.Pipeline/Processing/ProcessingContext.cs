@@ -1,0 +1,46 @@
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Output;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Pipeline.State;
+
+namespace Seamwright.Pipeline.Processing;
+
+/// <summary>Everything a set run needs that outlives the run: one per output root.</summary>
+public sealed class ProcessingContext
+{
+    public required string OutputRoot { get; init; }
+    /// <summary>Current settings; replaced on a configuration reload (reads are atomic reference loads).</summary>
+    public required SeamwrightOptions Options { get; set; }
+    public required StateStore Store { get; init; }
+    public required ConfidenceLog Log { get; init; }
+    public required IPairEngine Engine { get; init; }
+    public required FeatureCache Cache { get; init; }
+    /// <summary>Shared by every decode of the process.</summary>
+    public required MemoryBudget Budget { get; init; }
+    /// <summary>Bounds image and pair jobs across all sets of the process.</summary>
+    public required SemaphoreSlim JobSlots { get; init; }
+    public IProcessingObserver Observer { get; init; } = NullObserver.Instance;
+
+    /// <summary>Version of the pipeline's own result shaping (planning, output content); bump when outputs change.</summary>
+    public const int PipelineVersion = 1;
+
+    public static string ToolVersion { get; } =
+        typeof(ProcessingContext).Assembly.GetName().Version?.ToString(3) ?? "0.0.0";
+
+    /// <summary>The algorithm version recorded in outputs and fingerprinted: pipeline and engine versions.</summary>
+    public int AlgorithmVersion => PipelineVersion * 1000 + Engine.AlgorithmVersion;
+
+    public string FingerprintFor(string profile) =>
+        SettingsFingerprint.ForSet(Options.Profile(profile), Options.Limits, Engine.Name, AlgorithmVersion);
+
+    /// <summary>True when the ledger says the set's last finished run used these inputs and settings and its manifest exists.</summary>
+    public bool IsUpToDate(Sets.SetInputs set)
+    {
+        ArgumentNullException.ThrowIfNull(set);
+        var rec = Store.GetSet(set.SetId);
+        return rec is { State: SetStates.Done }
+            && rec.Fingerprint == FingerprintFor(set.Profile)
+            && rec.Inputs == set.InputsDigest()
+            && File.Exists(Path.Combine(OutputLayout.SetFolder(OutputRoot, set.SetId), OutputLayout.ManifestName));
+    }
+}

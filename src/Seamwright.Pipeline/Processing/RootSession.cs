@@ -1,0 +1,85 @@
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Output;
+using Seamwright.Pipeline.Sets;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Pipeline.State;
+
+namespace Seamwright.Pipeline.Processing;
+
+/// <summary>
+/// An opened output root: its lock (one instance per output root), leftover temporary files swept,
+/// the ledger opened and runs interrupted by a crash recovered, the confidence log with any torn
+/// last line dropped, and the set catalog of the watched root it serves.
+/// </summary>
+public sealed class RootSession : IDisposable
+{
+    private readonly OutputRootLock _lock;
+
+    private RootSession(OutputRootLock rootLock, ProcessingContext context, SetCatalog catalog)
+    {
+        _lock = rootLock;
+        Context = context;
+        Catalog = catalog;
+    }
+
+    public ProcessingContext Context { get; }
+
+    public SetCatalog Catalog { get; }
+
+    public RootSettings Root { get; private set; } = new();
+
+    public int SweptTemporaries { get; private set; }
+
+    public IReadOnlyList<string> RecoveredSets { get; private set; } = [];
+
+    public bool OutputOnNetworkShare { get; private set; }
+
+    public static RootSession Open(RootSettings root, SeamwrightOptions options, IPairEngine engine, MemoryBudget budget,
+        SemaphoreSlim jobSlots, IProcessingObserver observer)
+    {
+        ArgumentNullException.ThrowIfNull(root);
+        if (!Directory.Exists(root.Path))
+        {
+            throw new DirectoryNotFoundException("The folder to watch does not exist: " + root.Path);
+        }
+        string output = root.EffectiveOutput;
+        Directory.CreateDirectory(output);
+        var rootLock = OutputRootLock.Acquire(output);
+        try
+        {
+            int swept = AtomicFile.SweepTemporaries(output);
+            var store = StateStore.Open(output);
+            var recovered = store.RecoverInterrupted();
+            var ctx = new ProcessingContext
+            {
+                OutputRoot = output,
+                Options = options,
+                Store = store,
+                Log = new ConfidenceLog(output),
+                Engine = engine,
+                Cache = new FeatureCache(output, engine),
+                Budget = budget,
+                JobSlots = jobSlots,
+                Observer = observer,
+            };
+            return new RootSession(rootLock, ctx, new SetCatalog(root, options))
+            {
+                Root = root,
+                SweptTemporaries = swept,
+                RecoveredSets = recovered,
+                OutputOnNetworkShare = StoragePlace.IsNetworkPath(output),
+            };
+        }
+        catch
+        {
+            rootLock.Dispose();
+            throw;
+        }
+    }
+
+    public void Dispose()
+    {
+        Context.Store.Dispose();
+        _lock.Dispose();
+    }
+}

@@ -1,0 +1,48 @@
+using System.Security.Cryptography;
+using System.Text;
+using System.Text.Json;
+using System.Text.Json.Serialization;
+
+namespace Seamwright.Pipeline.Settings;
+
+/// <summary>
+/// Short stable digests of the settings that shape results. A set is redone when its fingerprint
+/// changes; completion and service settings are excluded because they do not change any output.
+/// The tool version is recorded in outputs but never fingerprinted: only the algorithm version
+/// (bumped when results change) is.
+/// </summary>
+public static class SettingsFingerprint
+{
+    private static readonly JsonSerializerOptions Canonical = new()
+    {
+        WriteIndented = false,
+        Converters = { new JsonStringEnumConverter() },
+    };
+
+    /// <summary>Fingerprint of everything that shapes a set's outputs.</summary>
+    public static string ForSet(ProfileSettings profile, LimitSettings limits, string engine, int algorithmVersion)
+    {
+        ArgumentNullException.ThrowIfNull(profile);
+        var shape = new
+        {
+            algorithm = algorithmVersion,
+            engine,
+            pairing = profile.Pairing,
+            features = profile.Features,
+            estimation = profile.Estimation,
+            extensions = profile.EffectiveExtensions.Select(e => e.ToLowerInvariant()).Order(StringComparer.Ordinal).ToArray(),
+            limits,
+        };
+        return Digest(JsonSerializer.Serialize(shape, Canonical));
+    }
+
+    /// <summary>Fingerprint of what shapes one image's features (the key of the feature cache with the image hash).</summary>
+    public static string ForFeatures(FeatureSettings features, string engine, string descriptorVersion) =>
+        Digest(JsonSerializer.Serialize(new { engine, descriptorVersion, features }, Canonical));
+
+    public static string Digest(string canonical)
+    {
+        byte[] hash = SHA256.HashData(Encoding.UTF8.GetBytes(canonical));
+        return Convert.ToHexStringLower(hash.AsSpan(0, 8));
+    }
+}

@@ -1,0 +1,65 @@
+using System.Text.Json;
+using Seamwright.Pipeline.Output;
+using Seamwright.Pipeline.Processing;
+using Seamwright.Tests.Shared;
+using Seamwright.Tests.Support;
+
+namespace Seamwright.Pipeline.Tests.Output;
+
+/// <summary>The JSON Schema files in docs/schemas/ describe exactly the fields our outputs carry.</summary>
+public class OutputSchemaTests
+{
+    private static JsonElement Schema(string name) =>
+        JsonDocument.Parse(File.ReadAllText(Path.Combine(RepoPaths.Root, "docs", "schemas", name))).RootElement;
+
+    /// <summary>Keys of the object are all declared (when extra keys are not allowed) and every required key is present.</summary>
+    private static void Conforms(JsonElement schema, JsonElement value, string where)
+    {
+        var declared = schema.GetProperty("properties").EnumerateObject().Select(p => p.Name).ToHashSet();
+        var present = value.EnumerateObject().Select(p => p.Name).ToHashSet();
+        foreach (var r in schema.GetProperty("required").EnumerateArray())
+        {
+            Assert.True(present.Contains(r.GetString()!), $"{where}: required '{r.GetString()}' missing");
+        }
+        if (schema.TryGetProperty("additionalProperties", out var extra) && extra.ValueKind == JsonValueKind.False)
+        {
+            Assert.True(present.IsSubsetOf(declared), $"{where}: undeclared fields {string.Join(", ", present.Except(declared))}");
+        }
+        if (schema.GetProperty("properties").TryGetProperty("schema", out var s) && s.TryGetProperty("const", out var c))
+        {
+            Assert.Equal(c.GetString(), value.GetProperty("schema").GetString());
+        }
+    }
+
+    [Fact]
+    public void Outputs_OfARun_ConformToTheirSchemaFiles()
+    {
+        using var dir = new ScratchFolder();
+        TestImages.WriteSet(dir.Sub("in/s"), 3, 1);
+        File.WriteAllText(dir.Sub("in/s/bad.png"), "not an image");
+        using var session = Sessions.Open(dir.Sub("in"), dir.Sub("out"), Sessions.Options());
+        new SetProcessor(session.Context).Process(session.Catalog.Discover().Single(), false, CancellationToken.None);
+        string setOut = dir.Sub("out/s");
+
+        var sidecarSchema = Schema("seamwright.sidecar.v1.schema.json");
+        var sidecar = JsonDocument.Parse(File.ReadAllText(Path.Combine(setOut, "img001.png.seam.json"))).RootElement;
+        Conforms(sidecarSchema, sidecar, "sidecar");
+        Conforms(sidecarSchema.GetProperty("$defs").GetProperty("link"), sidecar.GetProperty("links")[0], "sidecar link");
+
+        var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(setOut, OutputLayout.ManifestName))).RootElement;
+        var manifestSchema = Schema("seamwright.manifest.v1.schema.json");
+        Conforms(manifestSchema, manifest, "manifest");
+        Conforms(manifestSchema.GetProperty("properties").GetProperty("counts"), manifest.GetProperty("counts"), "manifest counts");
+
+        string ties = Directory.GetFiles(Path.Combine(setOut, OutputLayout.TiesFolder)).First();
+        Conforms(Schema("seamwright.tiepoints.v1.schema.json"), JsonDocument.Parse(File.ReadAllText(ties)).RootElement, "tie points");
+
+        var confidenceSchema = Schema("seamwright.confidence.v1.schema.json");
+        foreach (var line in File.ReadAllLines(Path.Combine(dir.Sub("out"), ConfidenceLog.FileName)))
+        {
+            var rec = JsonDocument.Parse(line).RootElement;
+            Conforms(confidenceSchema, rec, "confidence " + rec.GetProperty("kind").GetString());
+            Conforms(confidenceSchema.GetProperty("properties").GetProperty("timingsMs"), rec.GetProperty("timingsMs"), "confidence timings");
+        }
+    }
+}

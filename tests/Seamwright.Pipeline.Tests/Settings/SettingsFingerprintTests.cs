@@ -1,0 +1,51 @@
+using Seamwright.Pipeline.Settings;
+
+namespace Seamwright.Pipeline.Tests.Settings;
+
+public class SettingsFingerprintTests
+{
+    private static string Fp(ProfileSettings p) => SettingsFingerprint.ForSet(p, new LimitSettings(), "features", 1);
+
+    [Fact]
+    public void ForSet_CompletionChange_SameFingerprint()
+    {
+        var a = new ProfileSettings();
+        var b = new ProfileSettings { Completion = new CompletionSettings { QuietSeconds = 99, ReadyMarker = "GO" } };
+        Assert.Equal(Fp(a), Fp(b));
+    }
+
+    [Fact]
+    public void ForSet_EveryResultShapingChange_NewFingerprint()
+    {
+        string basis = Fp(new ProfileSettings());
+        var changes = new Action<ProfileSettings>[]
+        {
+            p => p.Estimation.ThresholdPx = 2.5,
+            p => p.Estimation.Seed = 1,
+            p => p.Estimation.MotionModel = Core.Estimation.MotionModel.Affine,
+            p => p.Pairing.NeighbourSpan = 3,
+            p => p.Pairing.Mode = PairingMode.All,
+            p => p.Features.MaxKeypoints = 500,
+            p => p.Features.Masks.Add(new MaskRect { X = 0, Y = 0, Width = 0.1, Height = 0.1 }),
+            p => p.Extensions.Add(".jpg"),
+        };
+        foreach (var change in changes)
+        {
+            var p = new ProfileSettings();
+            change(p);
+            Assert.NotEqual(basis, Fp(p));
+        }
+        Assert.NotEqual(basis, SettingsFingerprint.ForSet(new ProfileSettings(), new LimitSettings(), "features", 2));
+    }
+
+    [Fact]
+    public void ForFeatures_EstimationChange_CacheKeyUnchanged()
+    {
+        var p = new ProfileSettings();
+        string before = SettingsFingerprint.ForFeatures(p.Features, "features", "d1");
+        p.Estimation.ThresholdPx = 1;
+        Assert.Equal(before, SettingsFingerprint.ForFeatures(p.Features, "features", "d1"));
+        p.Features.WorkingMegapixels = 1;
+        Assert.NotEqual(before, SettingsFingerprint.ForFeatures(p.Features, "features", "d1"));
+    }
+}
