@@ -2,6 +2,7 @@ using System.Diagnostics;
 using OpenCvSharp;
 using Seamwright.Core.Imaging;
 using Seamwright.Pipeline.Features;
+using Seamwright.Pipeline.Loading;
 using Seamwright.Pipeline.Pairs;
 using Seamwright.Tests.Shared;
 using SixLabors.ImageSharp;
@@ -15,11 +16,13 @@ internal sealed record PairRun(string Pipeline, string Pair, double ErrorPx, IRe
 /// <summary>The two pipelines compared on one pair, decoding included, one thread each.</summary>
 internal static class PairPipelines
 {
+    private static readonly ImageLoader Loader = new();
+
     public static PairRun Seamwright(HomogrPair pair)
     {
         long t0 = Stopwatch.GetTimestamp();
-        var imageA = LoadGray(pair.ImageA);
-        var imageB = LoadGray(pair.ImageB);
+        var imageA = Loader.Load(pair.ImageA).Image;
+        var imageB = Loader.Load(pair.ImageB).Image;
         double load = Ms(t0);
         long t1 = Stopwatch.GetTimestamp();
         var fa = ImageFeatureExtractor.Extract(imageA, null, FeatureSettings.Default);

@@ -55,7 +55,8 @@ internal static class CornerDetector
                 {
                     continue;
                 }
-                if (!mask.IsEmpty && mask[i] < 128)
+                // Only pixels wholly outside excluded regions (area averaging leaves partly covered ones below 255).
+                if (!mask.IsEmpty && mask[i] < 255)
                 {
                     continue;
                 }
@@ -84,7 +85,11 @@ internal static class CornerDetector
         return ((float)Math.Clamp(dx, -0.5, 0.5), (float)Math.Clamp(dy, -0.5, 0.5));
     }
 
-    /// <summary>Keeps at most budget corners: the best of every cell first, then the second best, and so on.</summary>
+    /// <summary>
+    /// Keeps at most budget corners: the best of every cell first (in order of response), then the
+    /// second best of every cell, and so on. Candidates are bucketed by cell and only the cells are
+    /// sorted, so the cost stays near linear in the number of candidates.
+    /// </summary>
     private static List<LevelCorner> SpreadPick(List<LevelCorner> corners, int w, int h, int budget, int cell)
     {
         if (corners.Count <= budget)
@@ -92,30 +97,59 @@ internal static class CornerDetector
             return corners;
         }
         int n = corners.Count;
-        var order = new int[n];
-        var strength = new float[n];
+        int cols = (w + cell - 1) / cell, rows = (h + cell - 1) / cell, cells = cols * rows;
+        var start = new int[cells + 1];
+        var cellOf = new int[n];
         for (int i = 0; i < n; i++)
         {
-            order[i] = i;
-            strength[i] = -corners[i].Response;
-        }
-        // Collect emits in raster order, so the index breaks ties deterministically.
-        Array.Sort(order, (a, b) => strength[a] != strength[b] ? strength[a].CompareTo(strength[b]) : a.CompareTo(b));
-        int cols = (w + cell - 1) / cell, rows = (h + cell - 1) / cell;
-        var counts = new int[cols * rows];
-        var rank = new long[n];
-        for (int k = 0; k < n; k++)
-        {
-            var c = corners[order[k]];
+            var c = corners[i];
             int cx = Math.Min((int)c.X / cell, cols - 1), cy = Math.Min((int)c.Y / cell, rows - 1);
-            int r = counts[cy * cols + cx]++;
-            rank[k] = ((long)r << 32) | (uint)k;
+            cellOf[i] = cy * cols + cx;
+            start[cellOf[i] + 1]++;
         }
-        Array.Sort(rank);
-        var picked = new List<LevelCorner>(budget);
-        for (int k = 0; k < budget; k++)
+        for (int k = 0; k < cells; k++)
         {
-            picked.Add(corners[order[(int)(rank[k] & 0xFFFFFFFF)]]);
+            start[k + 1] += start[k];
+        }
+        var fill = (int[])start.Clone();
+        var members = new int[n];
+        var keys = new float[n];
+        for (int i = 0; i < n; i++)
+        {
+            int slot = fill[cellOf[i]]++;
+            members[slot] = i;
+            keys[slot] = -corners[i].Response;
+        }
+        for (int k = 0; k < cells; k++)
+        {
+            int len = start[k + 1] - start[k];
+            if (len > 1)
+            {
+                Array.Sort(keys, members, start[k], len);
+            }
+        }
+        var picked = new List<LevelCorner>(budget);
+        var round = new List<int>();
+        for (int rank = 0; picked.Count < budget; rank++)
+        {
+            round.Clear();
+            for (int k = 0; k < cells; k++)
+            {
+                if (start[k] + rank < start[k + 1])
+                {
+                    round.Add(members[start[k] + rank]);
+                }
+            }
+            // Within a round: strongest first, ties by raster order.
+            round.Sort((a, b) => corners[a].Response != corners[b].Response ? corners[b].Response.CompareTo(corners[a].Response) : a.CompareTo(b));
+            foreach (int i in round)
+            {
+                if (picked.Count == budget)
+                {
+                    break;
+                }
+                picked.Add(corners[i]);
+            }
         }
         return picked;
     }

@@ -78,12 +78,7 @@ public static class CornerResponse
                 int o = y * w;
                 if (!minEigen.IsEmpty)
                 {
-                    var dst = minEigen.Slice(o, w);
-                    for (int x = 0; x < w; x++)
-                    {
-                        float ha = xx[x] * 0.5f, hc = yy[x] * 0.5f, b = xy[x];
-                        dst[x] = ha + hc - MathF.Sqrt((ha - hc) * (ha - hc) + b * b);
-                    }
+                    MinEigenRow(xx, xy, yy, minEigen.Slice(o, w));
                 }
                 if (!harris.IsEmpty)
                 {
@@ -101,6 +96,33 @@ public static class CornerResponse
             ArrayPool<float>.Shared.Return(ring);
             ArrayPool<float>.Shared.Return(products);
             ArrayPool<float>.Shared.Return(sums);
+        }
+    }
+
+    private static void MinEigenRow(ReadOnlySpan<float> xx, ReadOnlySpan<float> xy, ReadOnlySpan<float> yy, Span<float> dst)
+    {
+        int x = 0;
+        if (Vector.IsHardwareAccelerated)
+        {
+            var half = new Vector<float>(0.5f);
+            var vxx = MemoryMarshal.Cast<float, Vector<float>>(xx);
+            var vxy = MemoryMarshal.Cast<float, Vector<float>>(xy);
+            var vyy = MemoryMarshal.Cast<float, Vector<float>>(yy);
+            var vd = MemoryMarshal.Cast<float, Vector<float>>(dst);
+            for (int i = 0; i < vd.Length; i++)
+            {
+                var ha = vxx[i] * half;
+                var hc = vyy[i] * half;
+                var b = vxy[i];
+                var diff = ha - hc;
+                vd[i] = ha + hc - Vector.SquareRoot(diff * diff + b * b);
+            }
+            x = vd.Length * Vector<float>.Count;
+        }
+        for (; x < dst.Length; x++)
+        {
+            float ha = xx[x] * 0.5f, hc = yy[x] * 0.5f, b = xy[x];
+            dst[x] = ha + hc - MathF.Sqrt((ha - hc) * (ha - hc) + b * b);
         }
     }
 
@@ -172,16 +194,10 @@ public static class CornerResponse
 
     private static void BoxRow(ReadOnlySpan<float> padded, Span<float> dst, int r)
     {
-        int width = 2 * r + 1;
-        for (int x = 0; x < dst.Length; x++)
+        dst.Clear();
+        for (int k = 0; k <= 2 * r; k++)
         {
-            float s = 0;
-            var window = padded.Slice(x, width);
-            for (int k = 0; k < window.Length; k++)
-            {
-                s += window[k];
-            }
-            dst[x] = s;
+            Add(dst, padded.Slice(k, dst.Length));
         }
     }
 }

@@ -11,7 +11,7 @@ namespace Seamwright.Core.Features;
 public static class OrientedCornerExtractor
 {
     /// <param name="image">The image (usually the working-resolution copy).</param>
-    /// <param name="mask">Optional, same size: pixels below 128 are excluded from detection.</param>
+    /// <param name="mask">Optional, same size: 255 where corners may be found, anything lower excluded.</param>
     public static FeatureSet Extract(GrayImage image, GrayImage? mask, CornerDetectorOptions options)
     {
         ArgumentNullException.ThrowIfNull(image);

@@ -11,7 +11,7 @@ namespace Seamwright.Core.Matching;
 public static class SelfSimilarity
 {
     /// <summary>Hamming distance (of 256) under which two descriptors count as twins (judgement: random pairs sit near 128).</summary>
-    public const int TwinDistance = 40;
+    public const int TwinDistance = 32;
 
     public static double RepeatedFraction(ReadOnlySpan<Descriptor256> descriptors, ReadOnlySpan<Keypoint> keypoints, int sample = 400,
         double sameCornerRadius = 3.0)

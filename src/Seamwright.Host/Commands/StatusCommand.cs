@@ -105,6 +105,11 @@ internal static class StatusCommand
                 w.WriteLine($"  last finished run: {last.RunId} of {last.SetId} at {last.FinishedUtc?.ToString("u", CultureInfo.InvariantCulture)}");
             }
         }
+        // The running service's live figures (queue, latency, rates, quarantine, health), from the
+        // heartbeat file it rewrites while healthy; stale after three missed beats.
+        var heartbeat = Operations.HeartbeatFile.TryRead(Path.Combine(output, StateStore.StateFolder, Operations.HeartbeatFile.FileName));
+        double beat = heartbeat is { HeartbeatSeconds: > 0 } ? heartbeat.HeartbeatSeconds : 10;
+        System.Console.Out.Write(Operations.StatusReport.Render(heartbeat, DateTimeOffset.UtcNow, TimeSpan.FromSeconds(3 * beat)));
         return ExitCodes.Ok;
     }
 

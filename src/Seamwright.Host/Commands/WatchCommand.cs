@@ -1,8 +1,10 @@
 using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Options;
 using Microsoft.Extensions.Primitives;
 using Seamwright.Host.Configuration;
+using Seamwright.Host.Operations;
 using Seamwright.Host.Service;
 using Seamwright.Pipeline.Analysis;
 using Seamwright.Pipeline.Processing;
@@ -54,6 +56,10 @@ internal static class WatchCommand
             ContentRootPath = AppContext.BaseDirectory,
         });
         builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
+        // Bound and validated again by the host at start (IValidateOptions + ValidateOnStart); the
+        // same validator already ran above so that a bad setting exits 2 before anything starts.
+        builder.Services.AddSingleton<IValidateOptions<SeamwrightOptions>, SettingsValidator>();
+        builder.Services.AddOptions<SeamwrightOptions>().Bind(builder.Configuration.GetSection(SeamwrightOptions.SectionName)).ValidateOnStart();
         builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
         builder.Services.AddSystemd();
         builder.Services.Configure<HostOptions>(o =>
@@ -72,34 +78,59 @@ internal static class WatchCommand
         builder.Services.AddSerilog(Log.Logger, dispose: false);
 
         var sessions = new List<RootSession>();
+        ServiceOperations ops;
+        try
+        {
+            ops = new ServiceOperations(builder.Configuration, TimeProvider.System);
+        }
+        catch (SettingsException e)
+        {
+            Log.CloseAndFlush();
+            return RunCommand.Bad(e.Message);
+        }
         try
         {
             var engine = EngineFactory.Create(options.Engine);
+            using var loggerFactory = new Serilog.Extensions.Logging.SerilogLoggerFactory(Log.Logger);
+            var supervisionLog = loggerFactory.CreateLogger("Seamwright.Supervision");
             var budget = new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20);
             var slots = new SemaphoreSlim(options.Service.MaxParallelJobs);
-            var observer = new ServiceObserver(Log.Logger);
+            var observer = new ServiceObserver(Log.Logger, ops.Metrics);
             foreach (var root in options.Roots)
             {
-                var session = RootSession.Open(root, options, engine, budget, slots, observer);
+                var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
                 sessions.Add(session);
                 OneShot.Announce(session, Log.Logger);
                 Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);
             }
-            var runtime = new ServiceRuntime(sessions, options);
+            var runtime = new ServiceRuntime(sessions, options) { Ops = ops };
             builder.Services.AddSingleton(runtime);
+            ops.AddTo(builder.Services, sessions.Select(s => Path.GetFullPath(s.Catalog.RootPath)).ToList(),
+                sessions.Select(s => s.Context.OutputRoot).ToList(), Path.Combine(AppContext.BaseDirectory, "logs"));
+            if (ops.Pool is not null)
+            {
+                Log.Information("Decoding in {Workers} supervised worker processes: {Timeout} s and {Memory} MiB per job, quarantine after {Strikes} strikes",
+                    ops.Supervision.Workers, ops.Supervision.JobTimeoutSeconds, ops.Supervision.MemoryCapMegabytes, ops.Supervision.StrikesBeforeQuarantine);
+            }
             builder.Services.AddHostedService<WatcherService>();
             builder.Services.AddHostedService<SchedulerService>();
             builder.Services.AddHostedService<WorkerService>();
             using var host = builder.Build();
+            var loops = HostExit.LoopsOf(host);
             using var reload = ChangeToken.OnChange(((IConfiguration)builder.Configuration).GetReloadToken, () => Reload(builder.Configuration, a, runtime));
             host.Run();
-            if (runtime.Fatal is not null)
+            if (HostExit.CodeFor(loops, runtime.Fatal) != ExitCodes.Ok)
             {
-                Log.Fatal(runtime.Fatal, "Stopped by a fatal error");
+                Log.Fatal(runtime.Fatal ?? HostExit.FirstFault(loops), "Stopped by a fatal error");
                 return ExitCodes.Fatal;
             }
             Log.Information("Stopped");
             return ExitCodes.Ok;
+        }
+        catch (OptionsValidationException e)
+        {
+            System.Console.Error.WriteLine("seamwright: invalid settings: " + string.Join("; ", e.Failures));
+            return ExitCodes.BadArguments;
         }
         catch (Exception e) when (e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
         {
@@ -109,6 +140,8 @@ internal static class WatchCommand
         }
         finally
         {
+            // Workers first (their jobs were cancelled with the host), then the ledgers and roots.
+            ops.DisposeAsync().AsTask().GetAwaiter().GetResult();
             foreach (var s in sessions)
             {
                 s.Dispose();

@@ -9,6 +9,9 @@ internal sealed record OperationsFigures
     public required DateTimeOffset At { get; init; }
     public required int ProcessId { get; init; }
     public required bool Healthy { get; init; }
+
+    /// <summary>Seconds between heartbeats: a reader calls the file stale after three missed beats.</summary>
+    public double HeartbeatSeconds { get; init; }
     public IReadOnlyList<string> Problems { get; init; } = [];
 
     /// <summary>Sets waiting for a worker (complete but not yet processed).</summary>

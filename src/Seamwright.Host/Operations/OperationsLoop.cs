@@ -71,6 +71,7 @@ internal sealed class OperationsLoop(
             At = now,
             ProcessId = Environment.ProcessId,
             Healthy = report.Healthy,
+            HeartbeatSeconds = options.HeartbeatSeconds,
             Problems = problems,
             QueueDepth = service.QueueDepth,
             StuckSets = service.StuckSets(),

@@ -24,10 +24,14 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 LogStarted(log, t.Session.Catalog.RootPath, t.Sets.Count, t.Sets.Values.Count(s => s.Phase == SetPhase.Done));
             }
             var pending = new Queue<SetJob>();
+            var ops = runtime.Ops;
+            ops?.Health.Register(LoopName, TimeSpan.FromMilliseconds(Math.Max(60_000, 20 * runtime.Options.Service.PollMilliseconds)));
+            int round = 0;
             while (!stoppingToken.IsCancellationRequested)
             {
                 var now = DateTime.UtcNow;
                 var opts = runtime.Options.Service;
+                ops?.Health.Beat(LoopName);
                 bool rescan = runtime.TakeRescanRequest();
                 while (runtime.Hints.Reader.TryRead(out var hint))
                 {
@@ -57,13 +61,19 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                     var key = (result.Root, result.Outcome.SetId);
                     if (_busy.Remove(key, out var job))
                     {
+                        if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
+                            && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
+                        {
+                            ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
+                        }
                         trackers[result.Root].Finished(job, result.Outcome, now);
                     }
                 }
                 foreach (var t in trackers)
                 {
                     t.Relook(now, opts.StableSeconds);
-                    if (pending.Count == 0)
+                    // Below the free-space threshold no new set is taken; sets in progress finish.
+                    if (pending.Count == 0 && ops?.Disk?.Paused != true)
                     {
                         foreach (var job in t.Ready(now, opts.StableSeconds))
                         {
@@ -78,6 +88,14 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 {
                     var sent = pending.Dequeue();
                     trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
+                }
+                if (ops is not null)
+                {
+                    ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
+                    if (round++ % 20 == 0)
+                    {
+                        ops.PublishStuck(StuckSets(trackers, now));
+                    }
                 }
                 using var tick = CancellationTokenSource.CreateLinkedTokenSource(stoppingToken);
                 tick.CancelAfter(opts.PollMilliseconds);
@@ -103,6 +121,27 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
         {
             runtime.Jobs.Writer.TryComplete();
         }
+    }
+
+    private const string LoopName = "scheduler";
+
+    /// <summary>Sets still waiting a minute past their profile's maximum wait (the completion rule should have released them).</summary>
+    private static List<string> StuckSets(List<RootTracker> trackers, DateTime now)
+    {
+        var stuck = new List<string>();
+        foreach (var t in trackers)
+        {
+            foreach (var set in t.Sets.Values.Where(s => s.Phase is SetPhase.Waiting or SetPhase.Queued))
+            {
+                double maxWait = t.Session.Context.Options.Profile(t.Session.Catalog.ProfileFor(set.Id)).Completion.MaxWaitSeconds;
+                var waited = now - set.FirstSeenUtc;
+                if (waited.TotalSeconds > maxWait + 60)
+                {
+                    stuck.Add(System.FormattableString.Invariant($"{set.Id}: {set.Phase.ToString().ToLowerInvariant()} for {waited.TotalMinutes:0} min (maximum wait {maxWait / 60:0} min; {set.LastWhy})"));
+                }
+            }
+        }
+        return stuck;
     }
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Root {Root}: {Sets} sets found at start, {Done} already up to date")]

@@ -6,7 +6,7 @@ using Serilog;
 namespace Seamwright.Host.Service;
 
 /// <summary>Logs set processing in the service (structured events).</summary>
-internal sealed class ServiceObserver(ILogger log) : IProcessingObserver
+internal sealed class ServiceObserver(ILogger log, Operations.OperationsMetrics? metrics = null) : IProcessingObserver
 {
     public void SetStarted(string setId, long runId, int images) =>
         log.Information("Set {Set}: run {Run} started with {Images} images", setId, runId, images);
@@ -20,8 +20,11 @@ internal sealed class ServiceObserver(ILogger log) : IProcessingObserver
     public void PairsPlanned(string setId, int pairs) =>
         log.Debug("Set {Set}: {Pairs} pairs planned", setId, pairs);
 
-    public void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons) =>
+    public void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons)
+    {
+        metrics?.RecordPair(status);
         log.Debug("Set {Set}: pair {A} / {B}: {Status} ({Reasons})", setId, imageA, imageB, status, string.Join("; ", reasons));
+    }
 
     public void SetFinished(SetOutcome outcome)
     {

@@ -45,6 +45,9 @@ internal sealed class ServiceRuntime
 
     public Exception? Fatal { get; private set; }
 
+    /// <summary>Supervised decoding and the health loop (null in tests that run the loops bare).</summary>
+    public ServiceOperations? Ops { get; set; }
+
     /// <summary>Set when the settings were reloaded; the scheduler re-checks every set's fingerprint.</summary>
     public volatile bool SettingsChanged;
 

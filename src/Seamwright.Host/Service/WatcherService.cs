@@ -23,8 +23,14 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
                 Create(i);
             }
             var period = TimeSpan.FromSeconds(runtime.Options.Service.RescanSeconds);
+            if (runtime.Ops is { } ops)
+            {
+                ops.RestartWatcher = RestartFromCanary;
+                ops.Health.Register(LoopName, period * 3);
+            }
             while (!stoppingToken.IsCancellationRequested)
             {
+                runtime.Ops?.Health.Beat(LoopName);
                 await Task.Delay(period, stoppingToken).ConfigureAwait(false);
                 runtime.RequestRescan();
             }
@@ -60,8 +66,8 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
             NotifyFilter = NotifyFilters.FileName | NotifyFilters.DirectoryName | NotifyFilters.Size | NotifyFilters.LastWrite,
             InternalBufferSize = 64 * 1024,
         };
-        w.Created += (_, e) => runtime.Hint(root, e.FullPath);
-        w.Changed += (_, e) => runtime.Hint(root, e.FullPath);
+        w.Created += (_, e) => Hint(root, path, e.FullPath);
+        w.Changed += (_, e) => Hint(root, path, e.FullPath);
         w.Deleted += (_, e) => runtime.Hint(root, e.FullPath);
         w.Renamed += (_, e) =>
         {
@@ -79,6 +85,32 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
             _watchers[root] = w;
         }
         LogWatching(log, path);
+    }
+
+    private const string LoopName = "watcher";
+
+    /// <summary>Events for the canary prove the watcher alive and are not inputs; everything else is a hint.</summary>
+    private void Hint(int root, string rootPath, string path)
+    {
+        if (Operations.CanaryProbe.IsCanary(path))
+        {
+            runtime.Ops?.Canary?.Observed(rootPath, path);
+            return;
+        }
+        runtime.Hint(root, path);
+    }
+
+    /// <summary>The canary went unanswered: recreate that root's watcher and rescan.</summary>
+    private void RestartFromCanary(string rootPath)
+    {
+        for (int i = 0; i < runtime.Roots.Count; i++)
+        {
+            if (string.Equals(Path.GetFullPath(runtime.Roots[i].Catalog.RootPath), rootPath, StringComparison.Ordinal))
+            {
+                Create(i);
+                runtime.RequestRescan();
+            }
+        }
     }
 
     private void OnError(int root, Exception e)

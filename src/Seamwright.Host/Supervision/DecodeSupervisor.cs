@@ -49,7 +49,7 @@ internal sealed class DecodeSupervisor(WorkerPool pool, IQuarantineLedger ledger
     }
 
     /// <summary>Decodes one file; with <paramref name="featureOutputPath"/> the worker writes the features there.</summary>
-    public async Task<DecodeOutcome> DecodeAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null)
+    public async Task<DecodeOutcome> DecodeAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null, WorkerJobSpec? spec = null)
     {
         FileIdentity file;
         try
@@ -70,7 +70,7 @@ internal sealed class DecodeSupervisor(WorkerPool pool, IQuarantineLedger ledger
             JobResult result;
             try
             {
-                result = await pool.RunAsync(path, cancellationToken, featureOutputPath);
+                result = await pool.RunAsync(path, cancellationToken, featureOutputPath, spec);
             }
             finally
             {

@@ -6,6 +6,9 @@ namespace Seamwright.Host.Supervision;
 /// </summary>
 internal sealed record SupervisionOptions
 {
+    /// <summary>Decode in worker processes (true) or in the service process (false). Default true.</summary>
+    public bool Enabled { get; init; } = true;
+
     /// <summary>Worker processes kept running (1..32). Default 2.</summary>
     public int Workers { get; init; } = 2;
 

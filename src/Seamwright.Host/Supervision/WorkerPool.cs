@@ -49,7 +49,7 @@ internal sealed class WorkerPool : IAsyncDisposable
     /// Decodes one file in a worker. Throws <see cref="WorkerStartException"/> only when workers
     /// repeatedly fail to start (a broken installation, not a bad file: the service should stop).
     /// </summary>
-    public async Task<JobResult> RunAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null)
+    public async Task<JobResult> RunAsync(string path, CancellationToken cancellationToken, string? featureOutputPath = null, WorkerJobSpec? spec = null)
     {
         var worker = await _slots.Reader.ReadAsync(cancellationToken);
         try
@@ -64,7 +64,8 @@ internal sealed class WorkerPool : IAsyncDisposable
                 worker = await StartWorkerAsync(cancellationToken);
             }
             var request = new WorkerRequest(Interlocked.Increment(ref _nextId), path,
-                _options.MaxFileMegabytes << 20, (long)(_options.MaxMegapixels * 1_000_000), featureOutputPath);
+                _options.MaxFileMegabytes << 20, (long)(_options.MaxMegapixels * 1_000_000), featureOutputPath,
+                spec?.Engine, spec?.FeaturesJson, spec?.LimitsJson);
             Interlocked.Increment(ref _jobs);
             var result = await worker.RunAsync(request, _options, cancellationToken);
             RecordPeak(result.PeakWorkingSetBytes);

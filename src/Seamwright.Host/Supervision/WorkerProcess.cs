@@ -15,6 +15,7 @@ internal sealed class WorkerProcess : IAsyncDisposable
     private readonly Stream _input;
     private readonly Stream _output;
     private readonly StringBuilder _stderrTail = new();
+    private string? _crashLine;
     private readonly object? _job;
     private bool _broken;
 
@@ -32,6 +33,16 @@ internal sealed class WorkerProcess : IAsyncDisposable
             }
             lock (_stderrTail)
             {
+                // The runtime's own crash line says most; it can scroll out of the tail behind a long stack.
+                string line = e.Data.Trim();
+                if (_crashLine is null && IsTelling(line))
+                {
+                    _crashLine = line;
+                }
+                else if (_crashLine is "Process terminated." && line.Length > 0)
+                {
+                    _crashLine += " " + line; // FailFast puts its message on the next line
+                }
                 _stderrTail.AppendLine(e.Data);
                 if (_stderrTail.Length > 4096)
                 {
@@ -206,11 +217,19 @@ internal sealed class WorkerProcess : IAsyncDisposable
     {
         await KillAsync();
         string exit = _process.HasExited ? DescribeExit(_process.ExitCode) : "still running";
-        string tail = StderrTail().Trim();
-        int lastLine = tail.LastIndexOf('\n');
-        string detail = tail.Length == 0 ? "" : "; stderr: " + (lastLine >= 0 ? tail[(lastLine + 1)..] : tail);
+        string? telling;
+        lock (_stderrTail)
+        {
+            telling = _crashLine ?? _stderrTail.ToString().Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).LastOrDefault();
+        }
+        string detail = telling is null ? "" : "; stderr: " + telling;
         return new JobResult(JobEnd.Crashed, $"worker crashed ({exit}): {what}{detail}", null, peak);
     }
+
+    /// <summary>The runtime's crash lines: "Unhandled exception. ...", "Process terminated. ...", "Out of memory.".</summary>
+    private static bool IsTelling(string line) =>
+        line.StartsWith("Unhandled exception", StringComparison.Ordinal) || line.StartsWith("Process terminated", StringComparison.Ordinal)
+        || line.StartsWith("Out of memory", StringComparison.Ordinal);
 
     private static string DescribeExit(int code) =>
         OperatingSystem.IsWindows() || code <= 128

@@ -85,9 +85,16 @@ internal sealed record WorkerHello(int Protocol, int ProcessId, string Limits);
 /// <summary>
 /// One job: load the image at <paramref name="Path"/> within the given budgets and extract its
 /// features. When <paramref name="FeatureOutputPath"/> is set the worker writes the features
-/// there (feature cache codec, atomic write) instead of sending them back; the reply stays small.
+/// there (atomic write) instead of sending them back; the reply stays small. With
+/// <paramref name="Engine"/> the worker runs that pair engine's analysis with the given
+/// settings (JSON) and writes the engine's cache encoding; without it, the loader and the
+/// feature extractor with default settings, written in the feature cache codec.
 /// </summary>
-internal sealed record WorkerRequest(long Id, string Path, long MaxFileBytes, long MaxPixels, string? FeatureOutputPath = null);
+internal sealed record WorkerRequest(long Id, string Path, long MaxFileBytes, long MaxPixels, string? FeatureOutputPath = null,
+    string? Engine = null, string? FeaturesJson = null, string? LimitsJson = null);
+
+/// <summary>Which analysis a job runs: a pair engine by name with its settings as JSON.</summary>
+internal sealed record WorkerJobSpec(string Engine, string FeaturesJson, string LimitsJson);
 
 /// <summary>
 /// The answer to one job. <paramref name="Ok"/> false means the file is bad (the reason says

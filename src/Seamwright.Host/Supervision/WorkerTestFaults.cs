@@ -37,6 +37,17 @@ internal sealed class WorkerTestFaults
 
     public int Count => _byName.Count;
 
+    /// <summary>
+    /// The two variables, for a supervisor to hand on to its workers, when this process itself
+    /// was started with them (the service's integration tests); null otherwise.
+    /// </summary>
+    public static Dictionary<string, string>? PassThrough() =>
+        FromEnvironment() is null ? null : new Dictionary<string, string>
+        {
+            ["SEAMWRIGHT_TEST_HOOKS"] = "1",
+            ["SEAMWRIGHT_TEST_FAULTS"] = Environment.GetEnvironmentVariable("SEAMWRIGHT_TEST_FAULTS")!,
+        };
+
     /// <summary>Misbehaves when the file is named in the spec; returns otherwise.</summary>
     public void Apply(string path)
     {

@@ -20,10 +20,10 @@ public sealed record PairSettings
 
     /// <summary>
     /// Share of an image's sampled corners with a near-identical twin in the same image above which a
-    /// pair that is not accepted is reported as a repeated pattern. Judgement: ordinary scenes stay
-    /// well below; a tiled pattern is near 1.
+    /// pair that is not accepted is reported as a repeated pattern. Measured: the 32 homogr images
+    /// score 0.04-0.58 (text on a whiteboard is the highest), an exactly tiled pattern 1.0.
     /// </summary>
-    public double RepeatedPatternFraction { get; init; } = 0.3;
+    public double RepeatedPatternFraction { get; init; } = 0.75;
 
     /// <summary>Re-localise tie points at full resolution before the final polish.</summary>
     public bool Relocalize { get; init; } = true;

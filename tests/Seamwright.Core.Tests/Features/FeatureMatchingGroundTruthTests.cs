@@ -2,7 +2,7 @@ using Seamwright.Core.Features;
 using Seamwright.Core.Geometry;
 using Seamwright.Core.Imaging;
 using Seamwright.Core.Matching;
-using Seamwright.Tests.Shared;
+using Seamwright.Core.Synthetic;
 using Xunit.Abstractions;
 
 namespace Seamwright.Core.Tests.Features;
@@ -25,10 +25,11 @@ public class FeatureMatchingGroundTruthTests(ITestOutputHelper output)
     [MemberData(nameof(Views))]
     public void Match_KnownView_MostMatchesAgreeWithTruth(string name, double degrees, double scale, double perspective)
     {
-        var scene = new SyntheticScenes(7);
-        var a = scene.Render(W, H, Transform2D.Identity);
+        var scene = new ProceduralScene(7, SceneStyle.Courtyard);
+        var a = SceneRenderer.Render(scene, W, H, Transform2D.Identity);
         var truth = ViewTransform(degrees, scale, perspective);
-        var b = scene.Render(W, H, truth, noiseSigma: 2, noiseSeed: 3, gain: 0.8, offset: 20);
+        var b = ImageEffects.AddGaussianNoise(
+            ImageEffects.AdjustBrightnessContrast(SceneRenderer.Render(scene, W, H, truth.Inverse()), 0.8, 20), 2, 3);
         var options = new CornerDetectorOptions { MaxFeatures = 2000 };
         var fa = OrientedCornerExtractor.Extract(a, null, options);
         var fb = OrientedCornerExtractor.Extract(b, null, options);

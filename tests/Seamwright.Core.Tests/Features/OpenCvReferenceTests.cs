@@ -2,7 +2,7 @@ using System.Runtime.InteropServices;
 using OpenCvSharp;
 using Seamwright.Core.Features;
 using Seamwright.Core.Geometry;
-using Seamwright.Tests.Shared;
+using Seamwright.Core.Synthetic;
 
 namespace Seamwright.Core.Tests.Features;
 
@@ -13,7 +13,8 @@ public class OpenCvReferenceTests
 
     private static byte[] Scene()
     {
-        var img = new SyntheticScenes(11).Render(W, H, Transform2D.Scaling(0.7, 0.7), noiseSigma: 3, noiseSeed: 5);
+        var img = ImageEffects.AddGaussianNoise(
+            SceneRenderer.Render(new ProceduralScene(11, SceneStyle.EstateMap), W, H, Transform2D.Scaling(1 / 0.7, 1 / 0.7)), 3, 5);
         return img.Pixels;
     }
 

@@ -81,7 +81,7 @@ public class WatchServiceTests
         using var dir = new ScratchFolder();
         TestImages.WriteSet(dir.Sub("in/slow"), 2, 1);
         byte[] large = TestImages.Png(77, 1400, 1400); // about 2 MB of noisy blocks
-        using var service = Watch(dir, "--Seamwright:Service:StableSeconds=1.5", "--Seamwright:Profiles:default:Completion:QuietSeconds=1");
+        using var service = Watch(dir, "--Seamwright:Service:StableSeconds=3", "--Seamwright:Profiles:default:Completion:QuietSeconds=1");
         Ledger.WaitUntil(dir.Sub("out"), st => st.Sets().Any(s => s.State == SetStates.Done), Limit, "the first two images", service);
         long runsBefore = Ledger.Read(dir.Sub("out"), st => st.Runs().Count);
 
@@ -93,7 +93,7 @@ public class WatchServiceTests
             {
                 fs.Write(large, off, Math.Min(chunk, large.Length - off));
                 fs.Flush();
-                Thread.Sleep(400); // 12 pauses of 0.4 s: about 5 s of writing, each pause shorter than the stability period
+                Thread.Sleep(400); // 12 pauses of 0.4 s: about 5 s of writing, each pause far shorter than the 3 s stability period
             }
             finished = DateTime.UtcNow;
         }

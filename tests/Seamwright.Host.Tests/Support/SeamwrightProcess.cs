@@ -24,7 +24,11 @@ internal sealed class SeamwrightProcess : IDisposable
         "--Seamwright:Profiles:default:Completion:QuietSeconds=2",
     ];
 
-    public static SeamwrightProcess Start(string workingDirectory, params string[] args)
+    public static SeamwrightProcess Start(string workingDirectory, params string[] args) =>
+        StartWithEnvironment(workingDirectory, null, args);
+
+    /// <summary>Starts with extra environment variables (e.g. the worker's test-only fault hooks).</summary>
+    public static SeamwrightProcess StartWithEnvironment(string workingDirectory, IReadOnlyDictionary<string, string>? environment, params string[] args)
     {
         var psi = new ProcessStartInfo(Environment.GetEnvironmentVariable("DOTNET_HOST_PATH") ?? "dotnet")
         {
@@ -39,6 +43,10 @@ internal sealed class SeamwrightProcess : IDisposable
             psi.ArgumentList.Add(a);
         }
         psi.Environment["DOTNET_CLI_TELEMETRY_OPTOUT"] = "1";
+        foreach (var (key, value) in environment ?? new Dictionary<string, string>())
+        {
+            psi.Environment[key] = value;
+        }
         var p = new Process { StartInfo = psi };
         var sp = new SeamwrightProcess(p);
         p.OutputDataReceived += (_, e) => { if (e.Data is not null) { lock (sp._out) { sp._out.AppendLine(e.Data); } } };

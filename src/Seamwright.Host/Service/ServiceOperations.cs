@@ -1,0 +1,146 @@
+using Microsoft.Extensions.Configuration;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Logging;
+using Seamwright.Host.Configuration;
+using Seamwright.Host.Operations;
+using Seamwright.Host.Supervision;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Quarantine;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Pipeline.State;
+
+namespace Seamwright.Host.Service;
+
+/// <summary>
+/// What `watch` adds for unattended operation: supervised decoding (a worker pool shared by all
+/// roots, a quarantine ledger per output root) and the health and housekeeping loop (heartbeat,
+/// watchdog, canary, disk-space intake gate, figures, retention). Settings: the sections
+/// Seamwright:Supervision and Seamwright:Operations.
+/// </summary>
+internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl, IAsyncDisposable
+{
+    public const string ScratchFolder = "worker-scratch";
+    public const string LedgerFile = "decode-attempts.db";
+
+    private readonly List<SqliteQuarantineLedger> _ledgers = [];
+
+    public ServiceOperations(IConfiguration configuration, TimeProvider time)
+    {
+        Supervision = configuration.GetSection("Seamwright:Supervision").Get<SupervisionOptions>() ?? new SupervisionOptions();
+        Options = configuration.GetSection("Seamwright:Operations").Get<OperationsOptions>() ?? new OperationsOptions();
+        var problems = Supervision.Validate().Concat(Options.Validate()).ToList();
+        if (problems.Count > 0)
+        {
+            throw new SettingsException(string.Join("; ", problems));
+        }
+        Time = time;
+        Health = new HealthMonitor(time);
+        Metrics = new OperationsMetrics();
+        Pool = Supervision.Enabled ? new WorkerPool(WorkerLaunch.ForCurrentProgram(), Supervision, WorkerTestFaults.PassThrough()) : null;
+    }
+
+    public SupervisionOptions Supervision { get; }
+
+    public OperationsOptions Options { get; }
+
+    public TimeProvider Time { get; }
+
+    public HealthMonitor Health { get; }
+
+    public OperationsMetrics Metrics { get; }
+
+    public WorkerPool? Pool { get; }
+
+    public DiskSpaceGuard? Disk { get; private set; }
+
+    public CanaryProbe? Canary { get; private set; }
+
+    /// <summary>Set by the watcher loop: recreates the watcher of a root path.</summary>
+    public Action<string>? RestartWatcher { get; set; }
+
+    /// <summary>Published by the scheduler each round.</summary>
+    public int QueueDepth { get; set; }
+
+    private IReadOnlyList<string> _stuck = [];
+
+    public void PublishStuck(IReadOnlyList<string> stuck) => Volatile.Write(ref _stuck, stuck);
+
+    public IReadOnlyList<string> StuckSets() => Volatile.Read(ref _stuck);
+
+    public IReadOnlyList<string> Quarantined()
+    {
+        lock (_ledgers)
+        {
+            return _ledgers.SelectMany(l => l.ListQuarantined()).Select(q => $"{q.File.Path}: {q.Reason}").ToList();
+        }
+    }
+
+    /// <summary>The engine a root uses: analysis in supervised workers (when enabled) with this root's quarantine ledger.</summary>
+    public IPairEngine EngineFor(RootSettings root, IPairEngine engine, ILogger logger)
+    {
+        if (Pool is null)
+        {
+            return engine;
+        }
+        string state = Path.Combine(root.EffectiveOutput, StateStore.StateFolder);
+        Directory.CreateDirectory(state);
+        var ledger = new SqliteQuarantineLedger(Path.Combine(state, LedgerFile));
+        lock (_ledgers)
+        {
+            _ledgers.Add(ledger);
+        }
+        var supervisor = new DecodeSupervisor(Pool, ledger, Supervision, Time, logger);
+        supervisor.RecoverInterrupted();
+        // Analyses handed over by workers are read and deleted at once; what a killed service left
+        // is stale. Only old files go: the output root's lock is not taken yet, and another
+        // instance holding it may have a file in flight.
+        string scratch = Path.Combine(state, ScratchFolder);
+        if (Directory.Exists(scratch))
+        {
+            foreach (var stale in new DirectoryInfo(scratch).GetFiles().Where(f => f.LastWriteTimeUtc < DateTime.UtcNow.AddHours(-1)))
+            {
+                stale.Delete();
+            }
+        }
+        return new SupervisedEngine(engine, supervisor, scratch);
+    }
+
+    /// <summary>Registers the operations loop once the roots are open.</summary>
+    public void AddTo(IServiceCollection services, IReadOnlyList<string> watchedRoots, IReadOnlyList<string> outputRoots, string? logFolder)
+    {
+        if (Options.PauseBelowFreeMegabytes > 0)
+        {
+            Disk = new DiskSpaceGuard(new DriveFreeSpaceProbe(), outputRoots, Options.PauseBelowFreeMegabytes << 20, Options.ResumeMarginMegabytes << 20);
+        }
+        if (Options.CanarySeconds > 0)
+        {
+            Canary = new CanaryProbe(watchedRoots, this, Time, TimeSpan.FromSeconds(Options.CanarySeconds));
+        }
+        var heartbeats = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, HeartbeatFile.FileName)).ToList();
+        var caches = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, "features")).ToList();
+        var retention = new RetentionSweeper(Options, logFolder, caches, [], null);
+        services.AddSingleton(this);
+        services.AddSingleton(Health);
+        services.AddSingleton(Options);
+        services.AddSingleton(Time);
+        services.AddSingleton(sp => new OperationsLoop(Options, Health, Metrics, this, Time,
+            sp.GetRequiredService<ILoggerFactory>().CreateLogger<OperationsLoop>(), heartbeats,
+            SystemdNotifier.FromEnvironment(), Disk, Canary, Pool, retention));
+        services.AddHostedService<OperationsService>();
+    }
+
+    public void RestartAndRescan(string root) => RestartWatcher?.Invoke(root);
+
+    public async ValueTask DisposeAsync()
+    {
+        if (Pool is not null)
+        {
+            await Pool.DisposeAsync();
+        }
+        lock (_ledgers)
+        {
+            _ledgers.ForEach(l => l.Dispose());
+            _ledgers.Clear();
+        }
+    }
+}
