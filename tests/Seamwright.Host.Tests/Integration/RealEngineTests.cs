@@ -1,4 +1,5 @@
 using Seamwright.Core.Geometry;
+using Seamwright.Core.Synthetic;
 using Seamwright.Pipeline.Output;
 using Seamwright.Pipeline.Processing;
 using Seamwright.Tests.Shared;
@@ -14,11 +15,11 @@ public class RealEngineTests
     {
         using var dir = new ScratchFolder();
         Directory.CreateDirectory(dir.Sub("in/strip"));
-        var scene = new SyntheticScenes(42);
+        var scene = new ProceduralScene(42);
         // Three 400 x 300 views of one texture, each 120 px further right: known ground truth.
         for (int i = 0; i < 3; i++)
         {
-            var view = scene.Render(400, 300, Transform2D.Translation(-120.0 * i, 0));
+            var view = SceneRenderer.Render(scene, 400, 300, Transform2D.Translation(120.0 * i, 0));
             Pipeline.Output.ImageWriter.WritePng(dir.Sub($"in/strip/view{i + 1}.png"), view);
         }
 
