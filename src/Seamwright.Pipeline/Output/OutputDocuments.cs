@@ -24,8 +24,9 @@ public sealed record SidecarLink
     public required string Status { get; init; }
     public required int InlierCount { get; init; }
     public required int MatchCount { get; init; }
-    public required double CornerSigmaPx { get; init; }
-    public required double RmsResidualPx { get; init; }
+    /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
+    public required double? CornerSigmaPx { get; init; }
+    public required double? RmsResidualPx { get; init; }
     public required ulong Seed { get; init; }
     /// <summary>Tie-point file, relative to the set's output folder; null when none was written.</summary>
     public required string? TiePoints { get; init; }
@@ -119,8 +120,9 @@ public sealed record ConfidenceRecord
     /// <summary>3x3 row-major rows mapping A to B (null when none).</summary>
     public required double[][]? Homography { get; init; }
     public required string MotionModel { get; init; }
-    public required double CornerSigmaPx { get; init; }
-    public required double RmsResidualPx { get; init; }
+    /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
+    public required double? CornerSigmaPx { get; init; }
+    public required double? RmsResidualPx { get; init; }
     public required ConfidenceConsensus? Consensus { get; init; }
     public required ulong Seed { get; init; }
     public required string[] Reasons { get; init; }

@@ -43,3 +43,31 @@ public class RealEngineTests
         }
     }
 }
+
+/// <summary>Unrelated images give rejected pairs, never a failed set (non-finite figures become null in JSON).</summary>
+public class RealEngineUnrelatedImagesTests
+{
+    [Fact]
+    public void Run_ThreeUnrelatedScenes_PairsRejectedAndEveryOutputParses()
+    {
+        using var dir = new ScratchFolder();
+        Directory.CreateDirectory(dir.Sub("in/mixed"));
+        for (int i = 0; i < 3; i++)
+        {
+            var view = SceneRenderer.Render(new ProceduralScene(100 + (ulong)i, SceneStyle.Courtyard), 160, 120, Transform2D.Identity);
+            Pipeline.Output.ImageWriter.WritePng(dir.Sub($"in/mixed/unrelated{i + 1}.png"), view);
+        }
+
+        var (code, stdout, stderr) = SeamwrightProcess.Run(dir.Path, TimeSpan.FromMinutes(5),
+            "run", dir.Sub("in"), "--output", dir.Sub("out"), "--Seamwright:Engine=features");
+
+        Assert.True(code == 3, $"exit {code} (3 expected: finished with rejected pairs)\n{stdout}\n{stderr}");
+        var m = OutputChecks.ManifestIsComplete(dir.Sub("out/mixed"));
+        Assert.Equal(0, m.Counts.Accepted);
+        foreach (string sidecar in Directory.GetFiles(dir.Sub("out/mixed"), "*.seam.json"))
+        {
+            Assert.All(OutputJson.ReadSidecar(sidecar).Links, l => Assert.NotEqual("accepted", l.Status));
+        }
+        Assert.All(File.ReadAllLines(dir.Sub("out/confidence.jsonl")), l => OutputJson.ReadConfidenceLine(l));
+    }
+}
