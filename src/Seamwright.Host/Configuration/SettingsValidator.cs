@@ -70,6 +70,13 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
             Range(e, $"{k}:Estimation:RatioTest", p.Estimation.RatioTest, 0.1, 1.0, "(ratio)");
             Range(e, $"{k}:Estimation:Confidence", p.Estimation.Confidence, 0.5, 0.999999, "(probability)");
             Range(e, $"{k}:Estimation:MaxIterations", p.Estimation.MaxIterations, 10, 10000000, "iterations");
+            Range(e, $"{k}:Alignment:RobustScalePx", p.Alignment.RobustScalePx, 0.1, 100, "pixels");
+            Range(e, $"{k}:Alignment:LinkResidualLimitPx", p.Alignment.LinkResidualLimitPx, 0.5, 1000, "pixels");
+            Range(e, $"{k}:Alignment:PreviewMaxSide", p.Alignment.PreviewMaxSide, 64, 8192, "pixels");
+            if (p.Alignment.ReferenceImage.Contains('/', StringComparison.Ordinal) || p.Alignment.ReferenceImage.Contains('\\', StringComparison.Ordinal))
+            {
+                e.Add($"{k}:Alignment:ReferenceImage is '{p.Alignment.ReferenceImage}'; allowed: a file name without folders, or empty (most connected image)");
+            }
             foreach (var ext in p.Extensions)
             {
                 if (!ext.StartsWith('.') || ext.Length < 2)

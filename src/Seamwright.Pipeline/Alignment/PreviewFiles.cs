@@ -37,9 +37,9 @@ public sealed class PreviewFiles(IReadOnlyList<string> paths, int allocationLimi
                 throw;
             }
         }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException or ImageFormatException or UnknownImageFormatException
-            or InvalidImageContentException or InvalidMemoryOperationException or OutOfMemoryException or NotSupportedException)
+        catch (Exception e) when (e is not OperationCanceledException)
         {
+            // Whatever the decoder throws, the preview goes on without this image.
             return null;
         }
     }

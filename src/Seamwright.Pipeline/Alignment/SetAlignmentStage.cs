@@ -21,7 +21,8 @@ public sealed record AlignmentStageResult(
 public static class SetAlignmentStage
 {
     public static AlignmentStageResult Run(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
-        IReadOnlyList<string> paths, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings)
+        IReadOnlyList<string> paths, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings,
+        PreviewImageOpener? open = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(settings);
@@ -29,8 +30,8 @@ public static class SetAlignmentStage
         var alignment = SetAlignmentInputs.Align(images, pairs, model, settings.ToOptions(names));
         var references = alignment.Images.Select(p => p.Reference is int r ? names[r] : null).ToArray();
         var rows = alignment.Images.Select(p => p.ToReference?.ToRows()).ToArray();
-        var files = new PreviewFiles(paths);
-        var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, files.Open,
+        open ??= new PreviewFiles(paths).Open;
+        var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
             new PreviewOptions { MaxLongSide = settings.PreviewMaxSide });
         return new AlignmentStageResult(alignment, ManifestAlignment.From(alignment, names), references, rows, visuals);
     }

@@ -101,6 +101,8 @@ public sealed record ManifestDocument
     public required ManifestSkipped[] Skipped { get; init; }
     public required ManifestCounts Counts { get; init; }
     public required ManifestEntry[] Files { get; init; }
+    /// <summary>The set alignment: reference, components, canvas, residuals, unplaced images, left-out links.</summary>
+    public Seamwright.Pipeline.Alignment.ManifestAlignment? Alignment { get; init; }
 }
 
 /// <summary>One line of <c>confidence.jsonl</c>: one pair (kind "pair") or one unusable file (kind "file") of one run.</summary>

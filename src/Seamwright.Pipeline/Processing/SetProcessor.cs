@@ -1,6 +1,9 @@
 using System.Diagnostics;
+using System.Globalization;
+using System.Text;
 using System.Security.Cryptography;
 using Seamwright.Core.Estimation;
+using Seamwright.Pipeline.Alignment;
 using Seamwright.Pipeline.Analysis;
 using Seamwright.Pipeline.Output;
 using Seamwright.Pipeline.Planning;
@@ -201,6 +204,7 @@ public sealed class SetProcessor(ProcessingContext ctx)
 
         string setFolder = OutputLayout.SetFolder(ctx.OutputRoot, set.SetId);
         var writes = new List<(string Relative, string Kind, byte[] Bytes)>();
+        var aligned = AlignSet(set, profile, fingerprint, runId, good, pairResults);
         var tiesOf = new Dictionary<int, string>();
         for (int k = 0; k < pairResults.Length; k++)
         {
@@ -266,6 +270,8 @@ public sealed class SetProcessor(ProcessingContext ctx)
                 Height = g.Analysis.Size.Height,
                 Bytes = g.File.Size,
                 Sha256 = g.Hash!,
+                Reference = aligned.ReferenceNames[i],
+                ToReference = aligned.ToReferenceRows[i],
                 Links = links.ToArray(),
                 SettingsFingerprint = fingerprint,
                 BaseSeed = profile.Estimation.Seed,
@@ -276,6 +282,11 @@ public sealed class SetProcessor(ProcessingContext ctx)
             };
             writes.Add((OutputLayout.SidecarRelative(g.File.Key), "sidecar", OutputJson.Sidecar(sidecar)));
         }
+        if (aligned.Visuals.PreviewJpeg is { } preview)
+        {
+            writes.Add((SetVisuals.PreviewFileName, "preview", preview));
+        }
+        writes.Add((SetVisuals.ReportFileName, "report", Encoding.UTF8.GetBytes(aligned.Visuals.ReportHtml)));
         // Each file is flushed to disk before its rename; several at once let the file system
         // commit their journal entries together (one fsync each, far fewer waits).
         var entries = new ManifestEntry[writes.Count];
@@ -319,6 +330,7 @@ public sealed class SetProcessor(ProcessingContext ctx)
                 .Concat(plan.Skipped.Select(s => new ManifestSkipped(s.Key, s.Reason))).ToArray(),
             Counts = new ManifestCounts(summary.Images, summary.BadFiles, summary.Pairs, summary.Accepted, summary.Weak, summary.Rejected),
             Files = entries.OrderBy(e => e.Path, StringComparer.Ordinal).ToArray(),
+            Alignment = aligned.Manifest,
         };
         // The manifest goes last: once it names this run, every file it lists is complete and durable.
         foreach (var folder in entries.Select(e => Path.GetDirectoryName(OutputLayout.Full(setFolder, e.Path))!).Distinct(StringComparer.Ordinal))
@@ -333,6 +345,26 @@ public sealed class SetProcessor(ProcessingContext ctx)
             p.Analysis.Estimate.InlierIndices.Length, p.Analysis.Estimate.MatchCount, string.Join("; ", p.Analysis.Estimate.Reasons))).ToList();
         ctx.Store.FinishRun(runId, set.SetId, fingerprint, set.InputsDigest(), summary, pairRows, fileOutcomes);
         return new SetOutcome(set.SetId, SetOutcomeKind.Done, runId, summary, null);
+    }
+
+    /// <summary>Places the set's images in one reference frame and builds the preview and report (see docs on toReference).</summary>
+    private AlignmentStageResult AlignSet(SetInputs set, Settings.ProfileSettings profile, string fingerprint, long runId,
+        List<ImageResult> good, PairResult[] pairResults)
+    {
+        var images = good.Select(g => new AlignedImage(g.File.Key, g.Analysis!.Size)).ToList();
+        var pairs = pairResults.Select(p => new AlignedPair(p.A, p.B, p.Analysis.Estimate, p.Analysis.TiePoints)).ToList();
+        // The preview decodes every placed image once more, in colour and downscaled: reserve the
+        // decode in the shared memory budget like any other decode.
+        var paths = good.Select(g => g.File.FullPath).ToList();
+        var files = new PreviewFiles(paths);
+        return SetAlignmentStage.Run(set.SetId, runId.ToString(CultureInfo.InvariantCulture), fingerprint, images, paths, pairs,
+            profile.Estimation.MotionModel, profile.Alignment,
+            (i, side) =>
+            {
+                long bytes = 4L * images[i].Size.Width * images[i].Size.Height;
+                using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
+                return files.Open(i, side);
+            });
     }
 
     private static ManifestEntry Write(string setFolder, string relative, string kind, byte[] bytes)
@@ -350,6 +382,11 @@ public sealed class SetProcessor(ProcessingContext ctx)
         if (Directory.Exists(ties))
         {
             candidates.AddRange(Directory.EnumerateFiles(ties, "*.json"));
+        }
+        string preview = Path.Combine(setFolder, SetVisuals.PreviewFileName);
+        if (File.Exists(preview))
+        {
+            candidates.Add(preview);
         }
         if (Directory.Exists(setFolder))
         {

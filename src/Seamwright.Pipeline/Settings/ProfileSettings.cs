@@ -103,6 +103,8 @@ public sealed class ProfileSettings
     public CompletionSettings Completion { get; set; } = new();
     public FeatureSettings Features { get; set; } = new();
     public EstimationSettings Estimation { get; set; } = new();
+    /// <summary>Set alignment, preview and report.</summary>
+    public Seamwright.Pipeline.Alignment.AlignmentSettings Alignment { get; set; } = new();
     /// <summary>File extensions taken as images (case-insensitive). Empty = the default list.</summary>
     public List<string> Extensions { get; set; } = [];
 

@@ -30,6 +30,7 @@ public static class SettingsFingerprint
             pairing = profile.Pairing,
             features = profile.Features,
             estimation = profile.Estimation,
+            alignment = profile.Alignment,
             extensions = profile.EffectiveExtensions.Select(e => e.ToLowerInvariant()).Order(StringComparer.Ordinal).ToArray(),
             limits,
         };

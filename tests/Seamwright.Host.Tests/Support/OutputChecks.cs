@@ -37,8 +37,22 @@ internal static class OutputChecks
             string full = OutputLayout.Full(setOutputFolder, e.Path);
             Assert.True(File.Exists(full), $"manifest of {m.Set} lists missing {e.Path}");
             Assert.Equal(e.Sha256, Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(File.ReadAllBytes(full))));
-            long run = e.Kind == "sidecar" ? OutputJson.ReadSidecar(full).Run : OutputJson.ReadTiePoints(full).Run;
-            Assert.Equal(m.Run, run);
+            switch (e.Kind)
+            {
+                case "preview":
+                    byte[] jpeg = File.ReadAllBytes(full);
+                    Assert.True(jpeg.Length > 4 && jpeg[0] == 0xFF && jpeg[1] == 0xD8 && jpeg[^2] == 0xFF && jpeg[^1] == 0xD9, $"{e.Path} is not a whole JPEG");
+                    break;
+                case "report":
+                    string html = File.ReadAllText(full);
+                    Assert.True(html.StartsWith("<!DOCTYPE html>", StringComparison.Ordinal) && html.TrimEnd().EndsWith("</html>", StringComparison.Ordinal), $"{e.Path} is not a whole page");
+                    Assert.Contains($"<code>{m.Run}</code>", html, StringComparison.Ordinal);
+                    break;
+                default:
+                    long run = e.Kind == "sidecar" ? OutputJson.ReadSidecar(full).Run : OutputJson.ReadTiePoints(full).Run;
+                    Assert.Equal(m.Run, run);
+                    break;
+            }
         }
         return m;
     }

@@ -50,6 +50,12 @@ public class OutputSchemaTests
         var manifestSchema = Schema("seamwright.manifest.v1.schema.json");
         Conforms(manifestSchema, manifest, "manifest");
         Conforms(manifestSchema.GetProperty("properties").GetProperty("counts"), manifest.GetProperty("counts"), "manifest counts");
+        var alignmentSchema = manifestSchema.GetProperty("properties").GetProperty("alignment");
+        var alignment = manifest.GetProperty("alignment");
+        Conforms(alignmentSchema, alignment, "manifest alignment");
+        Conforms(manifestSchema.GetProperty("$defs").GetProperty("canvas"), alignment.GetProperty("canvas"), "manifest canvas");
+        Conforms(manifestSchema.GetProperty("$defs").GetProperty("residuals"), alignment.GetProperty("residuals"), "manifest residuals");
+        Conforms(alignmentSchema.GetProperty("properties").GetProperty("components").GetProperty("items"), alignment.GetProperty("components")[0], "manifest component");
 
         string ties = Directory.GetFiles(Path.Combine(setOut, OutputLayout.TiesFolder)).First();
         Conforms(Schema("seamwright.tiepoints.v1.schema.json"), JsonDocument.Parse(File.ReadAllText(ties)).RootElement, "tie points");

@@ -32,7 +32,12 @@ public class SetProcessorTests
         }
         var sidecar = OutputJson.ReadSidecar(Path.Combine(setOut, "img001.png.seam.json"));
         Assert.Equal(64, sidecar.Width);
-        Assert.Null(sidecar.ToReference);
+        // Placed by the set alignment: a reference and a 3x3 transform into it; preview and report listed.
+        Assert.NotNull(sidecar.Reference);
+        Assert.Equal(3, sidecar.ToReference!.Length);
+        Assert.Single(manifest.Files, f => f.Kind == "report");
+        Assert.NotNull(manifest.Alignment);
+        Assert.Equal(sidecar.Reference, manifest.Alignment.Reference);
         Assert.Equal(new[] { "img002.png", "img003.png" }, sidecar.Links.Select(l => l.Other));
         var records = ConfidenceLog.ReadAll(Path.Combine(dir.Sub("out"), ConfidenceLog.FileName));
         Assert.Equal(7, records.Count(r => r.Run == outcome.RunId && r.Kind == "pair"));
@@ -84,7 +89,7 @@ public class SetProcessorTests
         Assert.False(File.Exists(dir.Sub("out/s/img004.png.seam.json")));
         var manifest = OutputJson.ReadManifest(dir.Sub("out/s/" + OutputLayout.ManifestName));
         var listed = manifest.Files.Select(f => f.Path).ToHashSet();
-        var onDisk = Directory.EnumerateFiles(dir.Sub("out/s"), "*.json", SearchOption.AllDirectories)
+        var onDisk = Directory.EnumerateFiles(dir.Sub("out/s"), "*", SearchOption.AllDirectories)
             .Select(f => Path.GetRelativePath(dir.Sub("out/s"), f).Replace('\\', '/')).Where(f => f != OutputLayout.ManifestName).ToHashSet();
         Assert.Equal(listed, onDisk);
         Assert.True(session.Context.IsUpToDate(session.Catalog.Discover().Single()));
