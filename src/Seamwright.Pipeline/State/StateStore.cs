@@ -57,6 +57,12 @@ public sealed class StateStore : IDisposable
             {
                 throw new InvalidOperationException($"State schema version {v} is newer than this build knows ({StateSchema.Version}).");
             }
+            if (v == 0)
+            {
+                // Created but never initialised (the writer stopped before its first commit): no state yet.
+                store.Dispose();
+                throw new FileNotFoundException("No Seamwright state under " + outputRoot + " yet", path);
+            }
         }
         return store;
     }
