@@ -36,7 +36,7 @@ internal static class CornerDetector
         return SpreadPick(found, w, h, budget, options.CellSize);
     }
 
-    private static void Collect(float[] r, int w, int h, ReadOnlySpan<byte> mask, int border, float floor, List<LevelCorner> found)
+    internal static void Collect(float[] r, int w, int h, ReadOnlySpan<byte> mask, int border, float floor, List<LevelCorner> found)
     {
         for (int y = border; y < h - border; y++)
         {
@@ -90,7 +90,7 @@ internal static class CornerDetector
     /// second best of every cell, and so on. Candidates are bucketed by cell and only the cells are
     /// sorted, so the cost stays near linear in the number of candidates.
     /// </summary>
-    private static List<LevelCorner> SpreadPick(List<LevelCorner> corners, int w, int h, int budget, int cell)
+    internal static List<LevelCorner> SpreadPick(List<LevelCorner> corners, int w, int h, int budget, int cell)
     {
         if (corners.Count <= budget)
         {
