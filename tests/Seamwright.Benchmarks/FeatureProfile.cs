@@ -117,7 +117,7 @@ internal static class FeatureProfile
             t["orient"] += Lap(ref c);
             for (int i = 0; i < corners.Count; i++)
             {
-                BinaryDescriptor.Compute(smoothed, w, (int)MathF.Round(corners[i].X), (int)MathF.Round(corners[i].Y), angles[i], DescriptorPattern.Points);
+                BinaryDescriptor.Compute(smoothed, w, (int)MathF.Round(corners[i].X), (int)MathF.Round(corners[i].Y), angles[i]);
             }
             t["descriptor"] += Lap(ref c);
             count += corners.Count;
