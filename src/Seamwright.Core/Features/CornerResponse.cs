@@ -178,10 +178,7 @@ public static class CornerResponse
             if (FloatRow[slot] != y)
             {
                 var src = Pixels.Slice(y * W, W);
-                for (int x = 0; x < W; x++)
-                {
-                    dst[x + 1] = src[x];
-                }
+                GaussianSmoother.ToFloats(src, dst.Slice(1, W));
                 dst[0] = src[Reflect(-1, W)];
                 dst[W + 1] = src[Reflect(W, W)];
                 FloatRow[slot] = y;

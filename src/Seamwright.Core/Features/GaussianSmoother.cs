@@ -50,13 +50,14 @@ internal static class GaussianSmoother
         return dst;
     }
 
-    private static void ToFloats(ReadOnlySpan<byte> src, float[] dst)
+    /// <summary>dst[i] = src[i] for every source byte.</summary>
+    internal static void ToFloats(ReadOnlySpan<byte> src, Span<float> dst)
     {
         int i = 0;
         if (Vector256.IsHardwareAccelerated)
         {
             ref byte s0 = ref MemoryMarshal.GetReference(src);
-            ref float d0 = ref MemoryMarshal.GetArrayDataReference(dst);
+            ref float d0 = ref MemoryMarshal.GetReference(dst);
             for (; i + Vector256<byte>.Count <= src.Length; i += Vector256<byte>.Count)
             {
                 var (lo, hi) = Vector256.Widen(Vector256.LoadUnsafe(ref s0, (nuint)i));
