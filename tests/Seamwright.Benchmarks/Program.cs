@@ -11,6 +11,14 @@ internal static class Program
         {
             return PairComparisonReport.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "profile-features")
+        {
+            return FeatureProfile.Run(args[1..]);
+        }
+        if (args.Length > 0 && args[0] == "profile-matching")
+        {
+            return MatchingProfile.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "eval-refiner")
         {
             return RefinerEval.Run(args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 3,

@@ -1,4 +1,6 @@
 using System.Runtime.CompilerServices;
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace Seamwright.Core.Features;
 
@@ -12,6 +14,72 @@ internal static class BinaryDescriptor
     /// <summary>Largest offset of a rotated test point from the centre, in pixels.</summary>
     public const int Reach = 16;
 
+    /// <summary>The embedded pattern as four float tables (x1, y1, x2, y2), 256 entries each.</summary>
+    private static readonly float[] Columns = BuildColumns();
+
+    /// <summary>
+    /// The descriptor with the embedded pattern. Eight tests at a time where AVX2 is available: the
+    /// same rotated, rounded offsets (products, sum, round half to even) and comparisons as <see cref="Test"/>.
+    /// The keypoint must lie at least Reach + 1 pixels inside the image (4-byte gathers read 3 bytes further).
+    /// </summary>
+    public static Descriptor256 Compute(ReadOnlySpan<byte> smoothed, int width, int cx, int cy, float angle)
+    {
+        if (!Avx2.IsSupported)
+        {
+            return Compute(smoothed, width, cx, cy, angle, DescriptorPattern.Points);
+        }
+        float c = MathF.Cos(angle), s = MathF.Sin(angle);
+        int centre = cy * width + cx;
+        if (centre - Reach * width - Reach < 0 || centre + Reach * width + Reach + 3 >= smoothed.Length)
+        {
+            throw new ArgumentOutOfRangeException(nameof(cy), "The keypoint is too close to the image border.");
+        }
+        var vc = Vector256.Create(c);
+        var vs = Vector256.Create(s);
+        var vw = Vector256.Create(width);
+        var vcentre = Vector256.Create(centre);
+        var low = Vector256.Create(0xFF);
+        Span<ulong> words = stackalloc ulong[4];
+        unsafe
+        {
+            fixed (byte* image = smoothed)
+            fixed (float* p = Columns)
+            {
+                for (int t = 0; t < 256; t += Vector256<float>.Count)
+                {
+                    var x1 = Avx.LoadVector256(p + t);
+                    var y1 = Avx.LoadVector256(p + 256 + t);
+                    var x2 = Avx.LoadVector256(p + 512 + t);
+                    var y2 = Avx.LoadVector256(p + 768 + t);
+                    var a = vcentre + Vector256.ConvertToInt32(Avx.RoundToNearestInteger(vs * x1 + vc * y1)) * vw
+                        + Vector256.ConvertToInt32(Avx.RoundToNearestInteger(vc * x1 - vs * y1));
+                    var b = vcentre + Vector256.ConvertToInt32(Avx.RoundToNearestInteger(vs * x2 + vc * y2)) * vw
+                        + Vector256.ConvertToInt32(Avx.RoundToNearestInteger(vc * x2 - vs * y2));
+                    var pa = Avx2.GatherVector256((int*)image, a, 1) & low;
+                    var pb = Avx2.GatherVector256((int*)image, b, 1) & low;
+                    ulong bits = Vector256.LessThan(pa, pb).ExtractMostSignificantBits();
+                    words[t / 64] |= bits << (t % 64);
+                }
+            }
+        }
+        return new Descriptor256(words[0], words[1], words[2], words[3]);
+    }
+
+    private static float[] BuildColumns()
+    {
+        var points = DescriptorPattern.Points;
+        var columns = new float[4 * 256];
+        for (int t = 0; t < 256; t++)
+        {
+            for (int j = 0; j < 4; j++)
+            {
+                columns[j * 256 + t] = points[4 * t + j];
+            }
+        }
+        return columns;
+    }
+
+    /// <summary>The descriptor with any pattern, one test at a time.</summary>
     public static Descriptor256 Compute(ReadOnlySpan<byte> smoothed, int width, int cx, int cy, float angle, ReadOnlySpan<sbyte> pattern)
     {
         float c = MathF.Cos(angle), s = MathF.Sin(angle);

@@ -1,4 +1,7 @@
 using System.Buffers;
+using System.Numerics;
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 
 namespace Seamwright.Core.Features;
 
@@ -36,12 +39,43 @@ internal static class CornerDetector
         return SpreadPick(found, w, h, budget, options.CellSize);
     }
 
-    private static void Collect(float[] r, int w, int h, ReadOnlySpan<byte> mask, int border, float floor, List<LevelCorner> found)
+    internal static void Collect(float[] r, int w, int h, ReadOnlySpan<byte> mask, int border, float floor, List<LevelCorner> found)
     {
+        int x1 = w - border;
         for (int y = border; y < h - border; y++)
         {
             int o = y * w;
-            for (int x = border; x < w - border; x++)
+            int x = border;
+            if (Vector256.IsHardwareAccelerated)
+            {
+                // Eight pixels at a time: the same tests as below, as one bit mask; the few survivors are visited in order.
+                var vfloor = Vector256.Create(floor);
+                ref float r0 = ref MemoryMarshal.GetArrayDataReference(r);
+                for (; x + Vector256<float>.Count <= x1; x += Vector256<float>.Count)
+                {
+                    int i = o + x;
+                    var v = Vector256.LoadUnsafe(ref r0, (nuint)i);
+                    var keep = Vector256.GreaterThan(v, vfloor);
+                    if (keep == Vector256<float>.Zero)
+                    {
+                        continue;
+                    }
+                    keep &= Vector256.GreaterThan(v, Vector256.LoadUnsafe(ref r0, (nuint)(i - w - 1)))
+                        & Vector256.GreaterThan(v, Vector256.LoadUnsafe(ref r0, (nuint)(i - w)))
+                        & Vector256.GreaterThan(v, Vector256.LoadUnsafe(ref r0, (nuint)(i - w + 1)))
+                        & Vector256.GreaterThan(v, Vector256.LoadUnsafe(ref r0, (nuint)(i - 1)))
+                        & Vector256.GreaterThanOrEqual(v, Vector256.LoadUnsafe(ref r0, (nuint)(i + 1)))
+                        & Vector256.GreaterThanOrEqual(v, Vector256.LoadUnsafe(ref r0, (nuint)(i + w - 1)))
+                        & Vector256.GreaterThanOrEqual(v, Vector256.LoadUnsafe(ref r0, (nuint)(i + w)))
+                        & Vector256.GreaterThanOrEqual(v, Vector256.LoadUnsafe(ref r0, (nuint)(i + w + 1)));
+                    for (uint bits = keep.ExtractMostSignificantBits(); bits != 0; bits &= bits - 1)
+                    {
+                        int xi = x + BitOperations.TrailingZeroCount(bits);
+                        Accept(r, w, mask, o + xi, xi, y, found);
+                    }
+                }
+            }
+            for (; x < x1; x++)
             {
                 int i = o + x;
                 float v = r[i];
@@ -55,15 +89,20 @@ internal static class CornerDetector
                 {
                     continue;
                 }
-                // Only pixels wholly outside excluded regions (area averaging leaves partly covered ones below 255).
-                if (!mask.IsEmpty && mask[i] < 255)
-                {
-                    continue;
-                }
-                var (dx, dy) = SubPixel(r, i, w);
-                found.Add(new LevelCorner(x + dx, y + dy, v));
+                Accept(r, w, mask, i, x, y, found);
             }
         }
+    }
+
+    private static void Accept(float[] r, int w, ReadOnlySpan<byte> mask, int i, int x, int y, List<LevelCorner> found)
+    {
+        // Only pixels wholly outside excluded regions (area averaging leaves partly covered ones below 255).
+        if (!mask.IsEmpty && mask[i] < 255)
+        {
+            return;
+        }
+        var (dx, dy) = SubPixel(r, i, w);
+        found.Add(new LevelCorner(x + dx, y + dy, r[i]));
     }
 
     /// <summary>Offset of the peak of the quadratic through the 3x3 neighbourhood (zero when it is not a clean peak).</summary>
@@ -90,7 +129,7 @@ internal static class CornerDetector
     /// second best of every cell, and so on. Candidates are bucketed by cell and only the cells are
     /// sorted, so the cost stays near linear in the number of candidates.
     /// </summary>
-    private static List<LevelCorner> SpreadPick(List<LevelCorner> corners, int w, int h, int budget, int cell)
+    internal static List<LevelCorner> SpreadPick(List<LevelCorner> corners, int w, int h, int budget, int cell)
     {
         if (corners.Count <= budget)
         {

@@ -24,7 +24,6 @@ public static class OrientedCornerExtractor
         var budgets = LevelBudgets(options);
         var keypoints = new List<Keypoint>(options.MaxFeatures);
         var descriptors = new List<Descriptor256>(options.MaxFeatures);
-        var pattern = DescriptorPattern.Points;
         int border = BinaryDescriptor.Reach + 2;
         // Noise is estimated where it is still white (level 0) and carried to every level by simulation.
         double sigma = NoiseLevel.Estimate(image.Pixels, image.Width, image.Height);
@@ -62,7 +61,7 @@ public static class OrientedCornerExtractor
             {
                 int cx = (int)MathF.Round(c.X), cy = (int)MathF.Round(c.Y);
                 float angle = IntensityCentroid.Angle(levelImage.Pixels, w, cx, cy);
-                descriptors.Add(BinaryDescriptor.Compute(smoothed, w, cx, cy, angle, pattern));
+                descriptors.Add(BinaryDescriptor.Compute(smoothed, w, cx, cy, angle));
                 keypoints.Add(new Keypoint(
                     (float)ScaledImage.ToSource(c.X, levelScale), (float)ScaledImage.ToSource(c.Y, levelScale),
                     (float)levelScale, angle, c.Response, level));

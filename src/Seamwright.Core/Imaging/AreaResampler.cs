@@ -1,4 +1,7 @@
 using System.Buffers;
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace Seamwright.Core.Imaging;
 
@@ -54,11 +57,15 @@ public static class AreaResampler
         var wx = BoxWeights.Create(source.Width, outW, scale);
         var wy = BoxWeights.Create(source.Height, outH, scale);
         var result = new GrayImage(outW, outH);
-        float[] rowBuffer = ArrayPool<float>.Shared.Rent(outW);
+        // Horizontally filtered source rows, each computed once: slot j % slots holds source row j.
+        int slots = wy.MaxCount + 1;
+        float[] filtered = ArrayPool<float>.Shared.Rent(slots * outW);
+        float[] floats = ArrayPool<float>.Shared.Rent(source.Width);
         float[] accBuffer = ArrayPool<float>.Shared.Rent(outW);
+        var slotRow = new int[slots];
+        Array.Fill(slotRow, -1);
         try
         {
-            Span<float> row = rowBuffer.AsSpan(0, outW);
             Span<float> acc = accBuffer.AsSpan(0, outW);
             for (int yo = 0; yo < outH; yo++)
             {
@@ -68,39 +75,113 @@ public static class AreaResampler
                 int offset = wy.Offset[yo];
                 for (int k = 0; k < count; k++)
                 {
-                    FilterRow(source.Row(start + k), wx, row);
-                    float w = wy.Weights[offset + k];
-                    for (int x = 0; x < outW; x++)
+                    int j = start + k, slot = j % slots;
+                    var row = filtered.AsSpan(slot * outW, outW);
+                    if (slotRow[slot] != j)
                     {
-                        acc[x] += w * row[x];
+                        FilterRow(source.Row(j), floats, wx, row);
+                        slotRow[slot] = j;
                     }
+                    MultiplyAdd(acc, row, wy.Weights[offset + k]);
                 }
-                Span<byte> dst = result.Row(yo);
-                for (int x = 0; x < outW; x++)
-                {
-                    dst[x] = ToByte(acc[x]);
-                }
+                StoreBytes(acc, result.Row(yo));
             }
         }
         finally
         {
-            ArrayPool<float>.Shared.Return(rowBuffer);
+            ArrayPool<float>.Shared.Return(filtered);
+            ArrayPool<float>.Shared.Return(floats);
             ArrayPool<float>.Shared.Return(accBuffer);
         }
         return new ScaledImage(result, scale);
     }
 
-    private static void FilterRow(ReadOnlySpan<byte> src, BoxWeights w, Span<float> dst)
+    /// <summary>acc[x] += weight * row[x] (a product, then a sum: the same arithmetic on every path).</summary>
+    private static void MultiplyAdd(Span<float> acc, ReadOnlySpan<float> row, float weight)
     {
-        for (int xo = 0; xo < dst.Length; xo++)
+        int x = 0;
+        if (Vector256.IsHardwareAccelerated)
         {
-            int start = w.Start[xo];
-            int count = w.Count[xo];
-            int offset = w.Offset[xo];
-            float sum = 0;
-            for (int k = 0; k < count; k++)
+            var vw = Vector256.Create(weight);
+            ref float a0 = ref MemoryMarshal.GetReference(acc);
+            ref float r0 = ref MemoryMarshal.GetReference(row);
+            for (; x + Vector256<float>.Count <= acc.Length; x += Vector256<float>.Count)
             {
-                sum += w.Weights[offset + k] * src[start + k];
+                (Vector256.LoadUnsafe(ref a0, (nuint)x) + vw * Vector256.LoadUnsafe(ref r0, (nuint)x)).StoreUnsafe(ref a0, (nuint)x);
+            }
+        }
+        for (; x < acc.Length; x++)
+        {
+            acc[x] += weight * row[x];
+        }
+    }
+
+    /// <summary>ToByte of every value.</summary>
+    private static void StoreBytes(ReadOnlySpan<float> values, Span<byte> dst)
+    {
+        int x = 0;
+        if (Vector256.IsHardwareAccelerated)
+        {
+            var zero = Vector256<float>.Zero;
+            var max = Vector256.Create(255f);
+            var half = Vector256.Create(0.5f);
+            ref float v0 = ref MemoryMarshal.GetReference(values);
+            int step = 4 * Vector256<float>.Count;
+            for (; x + step <= dst.Length; x += step)
+            {
+                var i0 = Vector256.ConvertToInt32(Vector256.Min(Vector256.Max(Vector256.LoadUnsafe(ref v0, (nuint)x), zero), max) + half);
+                var i1 = Vector256.ConvertToInt32(Vector256.Min(Vector256.Max(Vector256.LoadUnsafe(ref v0, (nuint)(x + 8)), zero), max) + half);
+                var i2 = Vector256.ConvertToInt32(Vector256.Min(Vector256.Max(Vector256.LoadUnsafe(ref v0, (nuint)(x + 16)), zero), max) + half);
+                var i3 = Vector256.ConvertToInt32(Vector256.Min(Vector256.Max(Vector256.LoadUnsafe(ref v0, (nuint)(x + 24)), zero), max) + half);
+                var bytes = Vector256.Narrow(Vector256.Narrow(i0, i1), Vector256.Narrow(i2, i3));
+                bytes.AsByte().StoreUnsafe(ref MemoryMarshal.GetReference(dst), (nuint)x);
+            }
+        }
+        for (; x < dst.Length; x++)
+        {
+            dst[x] = ToByte(values[x]);
+        }
+    }
+
+    /// <summary>
+    /// One source row filtered horizontally: dst[xo] = sum over the taps of weight * pixel, added in
+    /// tap order from zero. The padded taps of shorter outputs have weight 0 and add exactly nothing.
+    /// </summary>
+    private static void FilterRow(ReadOnlySpan<byte> src, float[] floats, BoxWeights w, Span<float> dst)
+    {
+        int n = dst.Length, taps = w.MaxCount;
+        int xo = 0;
+        if (Avx2.IsSupported)
+        {
+            for (int x = 0; x < src.Length; x++)
+            {
+                floats[x] = src[x];
+            }
+            unsafe
+            {
+                fixed (float* f = floats)
+                fixed (int* index = w.TapIndex)
+                fixed (float* weight = w.TapWeight)
+                {
+                    for (; xo + Vector256<float>.Count <= n; xo += Vector256<float>.Count)
+                    {
+                        var sum = Vector256<float>.Zero;
+                        for (int k = 0; k < taps; k++)
+                        {
+                            var idx = Avx.LoadVector256(index + k * n + xo);
+                            sum += Avx.LoadVector256(weight + k * n + xo) * Avx2.GatherVector256(f, idx, 4);
+                        }
+                        sum.StoreUnsafe(ref MemoryMarshal.GetReference(dst), (nuint)xo);
+                    }
+                }
+            }
+        }
+        for (; xo < n; xo++)
+        {
+            float sum = 0;
+            for (int k = 0; k < taps; k++)
+            {
+                sum += w.TapWeight[k * n + xo] * src[w.TapIndex[k * n + xo]];
             }
             dst[xo] = sum;
         }
@@ -117,6 +198,18 @@ public static class AreaResampler
             Count = count;
             Offset = offset;
             Weights = weights;
+            int n = start.Length;
+            MaxCount = count.Max();
+            TapIndex = new int[MaxCount * n];
+            TapWeight = new float[MaxCount * n];
+            for (int i = 0; i < n; i++)
+            {
+                for (int k = 0; k < MaxCount; k++)
+                {
+                    TapIndex[k * n + i] = k < count[i] ? start[i] + k : start[i];
+                    TapWeight[k * n + i] = k < count[i] ? weights[offset[i] + k] : 0f;
+                }
+            }
         }
 
         public int[] Start { get; }
@@ -126,6 +219,14 @@ public static class AreaResampler
         public int[] Offset { get; }
 
         public float[] Weights { get; }
+
+        /// <summary>Most taps of any output.</summary>
+        public int MaxCount { get; }
+
+        /// <summary>Tap-major tables, MaxCount x outputs: source index and weight of tap k of output i at k * outputs + i (weight 0 past Count).</summary>
+        public int[] TapIndex { get; }
+
+        public float[] TapWeight { get; }
 
         public static BoxWeights Create(int sourceLength, int outputLength, double scale)
         {
