@@ -30,7 +30,11 @@ internal static class Ledger
             }
             catch (Microsoft.Data.Sqlite.SqliteException)
             {
-                // busy or not yet created: look again
+                // busy: look again
+            }
+            catch (FileNotFoundException)
+            {
+                // the ledger exists but its first commit has not happened yet: look again
             }
             Thread.Sleep(500);
         }
