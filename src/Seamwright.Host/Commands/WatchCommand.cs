@@ -99,7 +99,7 @@ internal static class WatchCommand
             foreach (var root in options.Roots)
             {
                 var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
-                session.Context.Review = new RigBaselineReview(ops.Options, loggerFactory.CreateLogger("Seamwright.RigBaseline"));
+                session.Context.Review = new RigBaselineReview(loggerFactory.CreateLogger("Seamwright.RigBaseline"));
                 sessions.Add(session);
                 OneShot.Announce(session, Log.Logger);
                 Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);

@@ -36,25 +36,9 @@ internal sealed record OperationsOptions
     /// <summary>Hours between retention sweeps (1..168). Default 24.</summary>
     public double RetentionSweepHours { get; init; } = 24;
 
-    /// <summary>Accepted results per camera pair that set a learned rig baseline (`frames`), 1..100. Default 5.</summary>
-    public int RigLearnFromFirst { get; init; } = 5;
-
-    /// <summary>Largest corner deviation from the rig baseline before a reason is given, pixels (> 0). Default 8.</summary>
-    public double RigTolerancePixels { get; init; } = 8;
-
-    /// <summary>Configured rig baselines (`frames`): camera folders and the 3x3 row-major transform A to B; they win over learning.</summary>
-    public IReadOnlyList<RigBaselineSetting> RigBaselines { get; init; } = [];
-
     public IReadOnlyList<string> Validate()
     {
         var problems = new List<string>();
-        foreach (var b in RigBaselines)
-        {
-            Check(b.Transform.Length == 9 && b.Transform.All(double.IsFinite) && b.Transform[8] != 0,
-                $"Operations:RigBaselines {b.CameraA}->{b.CameraB}: Transform must be 9 finite numbers (3x3 row-major) with a non-zero last entry");
-            Check(!string.Equals(b.CameraA, b.CameraB, StringComparison.Ordinal),
-                $"Operations:RigBaselines {b.CameraA}->{b.CameraB}: the two cameras must differ");
-        }
         Check(HeartbeatSeconds is >= 1 and <= 300, "Operations:HeartbeatSeconds must be 1..300");
         Check(FiguresLogSeconds is >= 10 and <= 86400, "Operations:FiguresLogSeconds must be 10..86400");
         Check(CanarySeconds == 0 || CanarySeconds is >= 5 and <= 3600, "Operations:CanarySeconds must be 0 (off) or 5..3600");
@@ -64,8 +48,6 @@ internal sealed record OperationsOptions
             "Operations:*RetentionDays must be 0 (keep) or more");
         Check(KeepOldRuns is >= 0 and <= 1000, "Operations:KeepOldRuns must be 0..1000");
         Check(RetentionSweepHours is >= 1 and <= 168, "Operations:RetentionSweepHours must be 1..168");
-        Check(RigLearnFromFirst is >= 1 and <= 100, "Operations:RigLearnFromFirst must be 1..100");
-        Check(RigTolerancePixels > 0, "Operations:RigTolerancePixels must be above 0");
         return problems;
 
         void Check(bool ok, string message)

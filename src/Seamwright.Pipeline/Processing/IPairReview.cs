@@ -13,5 +13,6 @@ public interface IPairReview
     /// <param name="aToB">The accepted transform mapping A to B.</param>
     /// <param name="sizeA">Size of image A.</param>
     /// <returns>A reason in words, or null when the pair is as expected.</returns>
-    string? ReviewAccepted(string setId, string imageA, string imageB, Transform2D aToB, ImageSize sizeA);
+    /// <param name="profileName">The set's profile; <paramref name="profile"/> its current settings.</param>
+    string? ReviewAccepted(string profileName, Settings.ProfileSettings profile, string setId, string imageA, string imageB, Transform2D aToB, ImageSize sizeA);
 }

@@ -207,7 +207,7 @@ public sealed class SetProcessor(ProcessingContext ctx)
         cancel.ThrowIfCancellationRequested();
         if (review is not null)
         {
-            ReviewPairs(review, set.SetId, good, pairResults);
+            ReviewPairs(review, set, profile, good, pairResults);
         }
 
         string setFolder = OutputLayout.SetFolder(ctx.OutputRoot, set.SetId);
@@ -376,15 +376,16 @@ public sealed class SetProcessor(ProcessingContext ctx)
     }
 
     /// <summary>Rig check of a <c>frames</c> set, in plan order (deterministic): a deviating accepted pair becomes weak with the reason.</summary>
-    private void ReviewPairs(IPairReview review, string setId, List<ImageResult> good, PairResult[] pairResults)
+    private void ReviewPairs(IPairReview review, SetInputs set, Settings.ProfileSettings profile, List<ImageResult> good, PairResult[] pairResults)
     {
+        string setId = set.SetId;
         for (int k = 0; k < pairResults.Length; k++)
         {
             var pr = pairResults[k];
             var est = pr.Analysis.Estimate;
             string keyA = good[pr.A].File.Key, keyB = good[pr.B].File.Key;
             if (est is { Status: PairStatus.Accepted, Transform: { } t }
-                && review.ReviewAccepted(setId, keyA, keyB, t, good[pr.A].Analysis!.Size) is { } reason)
+                && review.ReviewAccepted(set.Profile, profile, setId, keyA, keyB, t, good[pr.A].Analysis!.Size) is { } reason)
             {
                 est = est with { Status = PairStatus.Weak, Reasons = [.. est.Reasons, reason] };
                 pairResults[k] = pr with { Analysis = pr.Analysis with { Estimate = est } };

@@ -68,15 +68,17 @@ public sealed class RigBaselineReviewTests : IDisposable
         return new InputFile(path, Path.Combine(_folder, "in"), camera + "/" + name, info.Length, info.LastWriteTimeUtc.Ticks);
     }
 
-    private (RootSession Session, ShiftEngine Engine) Open(OperationsOptions ops)
+    private (RootSession Session, ShiftEngine Engine) Open(Action<ProfileSettings> rig)
     {
         var options = new SeamwrightOptions { Engine = ChecksumEngine.EngineName };
-        options.Profiles["default"] = new ProfileSettings { Pairing = new PairingSettings { Mode = PairingMode.Frames } };
+        var profile = new ProfileSettings { Pairing = new PairingSettings { Mode = PairingMode.Frames } };
+        rig(profile);
+        options.Profiles["default"] = profile;
         var engine = new ShiftEngine();
         Directory.CreateDirectory(Path.Combine(_folder, "in"));
         var session = RootSession.Open(options.RootFor(Path.Combine(_folder, "in"), Path.Combine(_folder, "out")), options, engine,
             new MemoryBudget(64L << 20), new SemaphoreSlim(1), NullObserver.Instance);
-        session.Context.Review = new RigBaselineReview(ops, NullLogger.Instance);
+        session.Context.Review = new RigBaselineReview(NullLogger.Instance);
         return (session, engine);
     }
 
@@ -86,7 +88,7 @@ public sealed class RigBaselineReviewTests : IDisposable
     [Fact]
     public void Process_LearnedBaselineLaterPairDeviates_PairWeakWithReason()
     {
-        var (session, engine) = Open(new OperationsOptions { RigLearnFromFirst = 2, RigTolerancePixels = 5 });
+        var (session, engine) = Open(p => (p.RigLearnFromFirst, p.RigTolerancePx) = (2, 5));
         using var _ = session;
         var processor = new SetProcessor(session.Context);
         var kinds = new List<SetOutcomeKind>();
@@ -112,7 +114,7 @@ public sealed class RigBaselineReviewTests : IDisposable
     public void Process_ConfiguredBaseline_FirstDeviatingPairWeak()
     {
         var configured = new RigBaselineSetting { CameraA = "camA", CameraB = "camB", Transform = [1, 0, 100, 0, 1, 0, 0, 0, 1] };
-        var (session, engine) = Open(new OperationsOptions { RigBaselines = [configured], RigTolerancePixels = 5 });
+        var (session, engine) = Open(p => (p.RigBaselines, p.RigTolerancePx) = ([configured], 5));
         using var _ = session;
         var processor = new SetProcessor(session.Context);
         engine.Shift = 3;
@@ -128,32 +130,43 @@ public sealed class RigBaselineReviewTests : IDisposable
     [Fact]
     public void Validate_BadConfiguredBaseline_Refused()
     {
-        var bad = new OperationsOptions { RigBaselines = [new RigBaselineSetting { CameraA = "a", CameraB = "b", Transform = [1, 0, 0] }] };
-        Assert.Contains(bad.Validate(), p => p.Contains("RigBaselines", StringComparison.Ordinal));
+        var options = new SeamwrightOptions();
+        options.Profiles["default"] = new ProfileSettings { RigBaselines = [new RigBaselineSetting { CameraA = "a", CameraB = "b", Transform = [1, 0, 0] }] };
+        var problems = Seamwright.Host.Configuration.SettingsValidator.Check(options);
+        Assert.Contains(problems, p => p.Contains("Profiles:default:RigBaselines:0", StringComparison.Ordinal));
     }
 
     [Fact]
-    public void Bind_RigBaselinesFromSettings_ReadAndValid()
+    public void Bind_RigBaselinesFromProfile_ReadAndFingerprinted()
     {
         var config = new ConfigurationBuilder().AddInMemoryCollection(new Dictionary<string, string?>
         {
-            ["Seamwright:Operations:RigBaselines:0:CameraA"] = "left",
-            ["Seamwright:Operations:RigBaselines:0:CameraB"] = "right",
-            ["Seamwright:Operations:RigBaselines:0:Transform:0"] = "1",
-            ["Seamwright:Operations:RigBaselines:0:Transform:1"] = "0",
-            ["Seamwright:Operations:RigBaselines:0:Transform:2"] = "250.5",
-            ["Seamwright:Operations:RigBaselines:0:Transform:3"] = "0",
-            ["Seamwright:Operations:RigBaselines:0:Transform:4"] = "1",
-            ["Seamwright:Operations:RigBaselines:0:Transform:5"] = "0",
-            ["Seamwright:Operations:RigBaselines:0:Transform:6"] = "0",
-            ["Seamwright:Operations:RigBaselines:0:Transform:7"] = "0",
-            ["Seamwright:Operations:RigBaselines:0:Transform:8"] = "1",
+            ["Pairing:Mode"] = "Frames",
+            ["RigTolerancePx"] = "4",
+            ["RigBaselines:0:CameraA"] = "left",
+            ["RigBaselines:0:CameraB"] = "right",
+            ["RigBaselines:0:Transform:0"] = "1",
+            ["RigBaselines:0:Transform:1"] = "0",
+            ["RigBaselines:0:Transform:2"] = "250.5",
+            ["RigBaselines:0:Transform:3"] = "0",
+            ["RigBaselines:0:Transform:4"] = "1",
+            ["RigBaselines:0:Transform:5"] = "0",
+            ["RigBaselines:0:Transform:6"] = "0",
+            ["RigBaselines:0:Transform:7"] = "0",
+            ["RigBaselines:0:Transform:8"] = "1",
         }).Build();
 
-        var options = config.GetSection("Seamwright:Operations").Get<OperationsOptions>()!;
+        var profile = config.Get<ProfileSettings>()!;
 
-        var b = Assert.Single(options.RigBaselines);
-        Assert.Equal(("left", "right", 250.5), (b.CameraA, b.CameraB, b.Transform[2]));
-        Assert.Empty(options.Validate());
+        var b = Assert.Single(profile.RigBaselines);
+        Assert.Equal(("left", "right", 250.5, 4.0), (b.CameraA, b.CameraB, b.Transform[2], profile.RigTolerancePx));
+        string before = SettingsFingerprint.ForSet(profile, new LimitSettings(), "checksum", 1);
+        b.Transform[2] = 251;
+        Assert.NotEqual(before, SettingsFingerprint.ForSet(profile, new LimitSettings(), "checksum", 1));
+        // Rig settings do not shape other pairings, so they leave those fingerprints alone.
+        var sequence = new ProfileSettings { Pairing = new PairingSettings { Mode = PairingMode.Sequence } };
+        string seq = SettingsFingerprint.ForSet(sequence, new LimitSettings(), "checksum", 1);
+        sequence.RigTolerancePx = 1;
+        Assert.Equal(seq, SettingsFingerprint.ForSet(sequence, new LimitSettings(), "checksum", 1));
     }
 }
