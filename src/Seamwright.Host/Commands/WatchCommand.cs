@@ -99,6 +99,7 @@ internal static class WatchCommand
             foreach (var root in options.Roots)
             {
                 var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
+                session.Context.Review = new RigBaselineReview(loggerFactory.CreateLogger("Seamwright.RigBaseline"));
                 sessions.Add(session);
                 OneShot.Announce(session, Log.Logger);
                 Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);
@@ -106,7 +107,7 @@ internal static class WatchCommand
             var runtime = new ServiceRuntime(sessions, options) { Ops = ops };
             builder.Services.AddSingleton(runtime);
             ops.AddTo(builder.Services, sessions.Select(s => Path.GetFullPath(s.Catalog.RootPath)).ToList(),
-                sessions.Select(s => s.Context.OutputRoot).ToList(), LogFolderOf(builder.Configuration));
+                sessions.Select(s => s.Context).ToList(), LogFolderOf(builder.Configuration));
             if (ops.Pool is not null)
             {
                 Log.Information("Decoding in {Workers} supervised worker processes: {Timeout} s and {Memory} MiB per job, quarantine after {Strikes} strikes",

@@ -49,6 +49,16 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
             Range(e, $"{k}:Pairing:AllMaxPartners", p.Pairing.AllMaxPartners, 1, 1000, "images");
             Range(e, $"{k}:Pairing:AllMinSimilarity", p.Pairing.AllMinSimilarity, -1, 1, "(cosine)");
             Regex(e, $"{k}:Pairing:GridPattern", p.Pairing.GridPattern, ["row", "col"]);
+            Range(e, $"{k}:RigLearnFromFirst", p.RigLearnFromFirst, 1, 100, "accepted results");
+            Range(e, $"{k}:RigTolerancePx", p.RigTolerancePx, 0.01, 10000, "px");
+            for (int i = 0; i < p.RigBaselines.Count; i++)
+            {
+                var b = p.RigBaselines[i];
+                if (b.Transform.Length != 9 || !b.Transform.All(double.IsFinite) || b.Transform[8] == 0 || b.CameraA == b.CameraB)
+                {
+                    e.Add($"{k}:RigBaselines:{i} ({b.CameraA} -> {b.CameraB}) is not usable; allowed: two different camera folders and a Transform of 9 finite numbers (3x3 row-major, A to B) with a non-zero last entry");
+                }
+            }
             Range(e, $"{k}:Completion:QuietSeconds", p.Completion.QuietSeconds, 0, 86400, "seconds");
             Range(e, $"{k}:Completion:ExpectedCount", p.Completion.ExpectedCount, 0, 1000000, "images (0 = not used)");
             Range(e, $"{k}:Completion:MaxWaitSeconds", p.Completion.MaxWaitSeconds, 1, 31 * 86400, "seconds");

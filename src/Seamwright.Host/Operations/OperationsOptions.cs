@@ -36,12 +36,6 @@ internal sealed record OperationsOptions
     /// <summary>Hours between retention sweeps (1..168). Default 24.</summary>
     public double RetentionSweepHours { get; init; } = 24;
 
-    /// <summary>Accepted results per camera pair that set a learned rig baseline (`frames`), 1..100. Default 5.</summary>
-    public int RigLearnFromFirst { get; init; } = 5;
-
-    /// <summary>Largest corner deviation from the rig baseline before a reason is given, pixels (> 0). Default 8.</summary>
-    public double RigTolerancePixels { get; init; } = 8;
-
     public IReadOnlyList<string> Validate()
     {
         var problems = new List<string>();
@@ -54,8 +48,6 @@ internal sealed record OperationsOptions
             "Operations:*RetentionDays must be 0 (keep) or more");
         Check(KeepOldRuns is >= 0 and <= 1000, "Operations:KeepOldRuns must be 0..1000");
         Check(RetentionSweepHours is >= 1 and <= 168, "Operations:RetentionSweepHours must be 1..168");
-        Check(RigLearnFromFirst is >= 1 and <= 100, "Operations:RigLearnFromFirst must be 1..100");
-        Check(RigTolerancePixels > 0, "Operations:RigTolerancePixels must be above 0");
         return problems;
 
         void Check(bool ok, string message)

@@ -5,6 +5,7 @@ using Seamwright.Host.Configuration;
 using Seamwright.Host.Operations;
 using Seamwright.Host.Supervision;
 using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Processing;
 using Seamwright.Pipeline.Quarantine;
 using Seamwright.Pipeline.Settings;
 using Seamwright.Pipeline.State;
@@ -106,8 +107,10 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
     }
 
     /// <summary>Registers the operations loop once the roots are open.</summary>
-    public void AddTo(IServiceCollection services, IReadOnlyList<string> watchedRoots, IReadOnlyList<string> outputRoots, string? logFolder)
+    public void AddTo(IServiceCollection services, IReadOnlyList<string> watchedRoots, IReadOnlyList<ProcessingContext> roots, string? logFolder)
     {
+        ArgumentNullException.ThrowIfNull(roots);
+        var outputRoots = roots.Select(r => r.OutputRoot).ToList();
         if (Options.PauseBelowFreeMegabytes > 0)
         {
             Disk = new DiskSpaceGuard(new DriveFreeSpaceProbe(), outputRoots, Options.PauseBelowFreeMegabytes << 20, Options.ResumeMarginMegabytes << 20);
@@ -118,7 +121,8 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
         }
         var heartbeats = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, HeartbeatFile.FileName)).ToList();
         var caches = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, "features")).ToList();
-        var retention = new RetentionSweeper(Options, logFolder, caches, [], null);
+        var runs = new LedgerRunRetention(roots);
+        var retention = new RetentionSweeper(Options, logFolder, caches, runs.ConfidenceLogs, runs);
         services.AddSingleton(this);
         services.AddSingleton(Health);
         services.AddSingleton(Options);

@@ -44,6 +44,16 @@ public sealed class ConfidenceLog
         }
     }
 
+    /// <summary>Runs <paramref name="action"/> (e.g. a retention rewrite of the file) while no append can interleave.</summary>
+    public void WithAppendsHeld(Action action)
+    {
+        ArgumentNullException.ThrowIfNull(action);
+        lock (_gate)
+        {
+            action();
+        }
+    }
+
     /// <summary>Cuts everything after the last newline; returns the bytes removed.</summary>
     public static long DropTornTail(string path)
     {

@@ -20,6 +20,8 @@ public sealed class ProcessingContext
     /// <summary>Bounds image and pair jobs across all sets of the process.</summary>
     public required SemaphoreSlim JobSlots { get; init; }
     public IProcessingObserver Observer { get; init; } = NullObserver.Instance;
+    /// <summary>Checks accepted pairs of <c>frames</c> sets (rig baseline); null = no check. Set once before processing starts.</summary>
+    public IPairReview? Review { get; set; }
 
     /// <summary>Version of the pipeline's own result shaping (planning, output content); bump when outputs change.</summary>
     public const int PipelineVersion = 1;

@@ -183,6 +183,7 @@ public sealed class SetProcessor(ProcessingContext ctx)
         var plan = PairPlanner.Plan(profile.Pairing, good.Select(g => new PlanImage(g.File.Key, g.Analysis!.CaptureTime, g.Analysis.Coarse)).ToList());
         ctx.Observer.PairsPlanned(set.SetId, plan.Pairs.Count);
         var pairResults = new PairResult[plan.Pairs.Count];
+        var review = profile.Pairing.Mode == Settings.PairingMode.Frames ? ctx.Review : null;
         Parallel.For(0, plan.Pairs.Count, new ParallelOptions { MaxDegreeOfParallelism = ctx.Options.Service.MaxParallelJobs, CancellationToken = cancel }, k =>
         {
             var (a, b) = (plan.Pairs[k].A, plan.Pairs[k].B);
@@ -193,7 +194,10 @@ public sealed class SetProcessor(ProcessingContext ctx)
                 ulong seed = PairSeed.Derive(profile.Estimation.Seed, good[a].File.Key, good[b].File.Key);
                 var pa = ctx.Engine.EstimatePair(good[a].Analysis!, good[b].Analysis!, profile.Estimation, seed);
                 pairResults[k] = new PairResult(a, b, pa, sw.Elapsed.TotalMilliseconds);
-                ctx.Observer.PairDone(set.SetId, good[a].File.Key, good[b].File.Key, pa.Estimate.Status, pa.Estimate.Reasons);
+                if (review is null)
+                {
+                    ctx.Observer.PairDone(set.SetId, good[a].File.Key, good[b].File.Key, pa.Estimate.Status, pa.Estimate.Reasons);
+                }
             }
             finally
             {
@@ -201,6 +205,10 @@ public sealed class SetProcessor(ProcessingContext ctx)
             }
         });
         cancel.ThrowIfCancellationRequested();
+        if (review is not null)
+        {
+            ReviewPairs(review, set, profile, good, pairResults);
+        }
 
         string setFolder = OutputLayout.SetFolder(ctx.OutputRoot, set.SetId);
         var writes = new List<(string Relative, string Kind, byte[] Bytes)>();
@@ -365,6 +373,25 @@ public sealed class SetProcessor(ProcessingContext ctx)
                 using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
                 return files.Open(i, side);
             });
+    }
+
+    /// <summary>Rig check of a <c>frames</c> set, in plan order (deterministic): a deviating accepted pair becomes weak with the reason.</summary>
+    private void ReviewPairs(IPairReview review, SetInputs set, Settings.ProfileSettings profile, List<ImageResult> good, PairResult[] pairResults)
+    {
+        string setId = set.SetId;
+        for (int k = 0; k < pairResults.Length; k++)
+        {
+            var pr = pairResults[k];
+            var est = pr.Analysis.Estimate;
+            string keyA = good[pr.A].File.Key, keyB = good[pr.B].File.Key;
+            if (est is { Status: PairStatus.Accepted, Transform: { } t }
+                && review.ReviewAccepted(set.Profile, profile, setId, keyA, keyB, t, good[pr.A].Analysis!.Size) is { } reason)
+            {
+                est = est with { Status = PairStatus.Weak, Reasons = [.. est.Reasons, reason] };
+                pairResults[k] = pr with { Analysis = pr.Analysis with { Estimate = est } };
+            }
+            ctx.Observer.PairDone(setId, keyA, keyB, est.Status, est.Reasons);
+        }
     }
 
     private static ManifestEntry Write(string setFolder, string relative, string kind, byte[] bytes)

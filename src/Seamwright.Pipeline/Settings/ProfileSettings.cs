@@ -107,6 +107,12 @@ public sealed class ProfileSettings
     public Seamwright.Pipeline.Alignment.AlignmentSettings Alignment { get; set; } = new();
     /// <summary>File extensions taken as images (case-insensitive). Empty = the default list.</summary>
     public List<string> Extensions { get; set; } = [];
+    /// <summary>`Frames` pairing: configured baselines per camera pair (win over learning).</summary>
+    public List<RigBaselineSetting> RigBaselines { get; set; } = [];
+    /// <summary>`Frames` pairing: accepted results per camera pair that set a learned baseline (their medoid).</summary>
+    public int RigLearnFromFirst { get; set; } = 5;
+    /// <summary>`Frames` pairing: largest corner deviation from the baseline, pixels, before an accepted pair becomes weak.</summary>
+    public double RigTolerancePx { get; set; } = 8;
 
     public static readonly string[] DefaultExtensions = [".jpg", ".jpeg", ".png", ".tif", ".tiff", ".bmp", ".webp"];
 

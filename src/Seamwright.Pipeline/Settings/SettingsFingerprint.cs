@@ -34,7 +34,13 @@ public static class SettingsFingerprint
             extensions = profile.EffectiveExtensions.Select(e => e.ToLowerInvariant()).Order(StringComparer.Ordinal).ToArray(),
             limits,
         };
-        return Digest(JsonSerializer.Serialize(shape, Canonical));
+        string canonical = JsonSerializer.Serialize(shape, Canonical);
+        if (profile.Pairing.Mode == PairingMode.Frames)
+        {
+            // Only `Frames` sets are checked against a rig baseline; other profiles keep their fingerprints.
+            canonical += JsonSerializer.Serialize(new { rigBaselines = profile.RigBaselines, rigLearnFromFirst = profile.RigLearnFromFirst, rigTolerancePx = profile.RigTolerancePx }, Canonical);
+        }
+        return Digest(canonical);
     }
 
     /// <summary>Fingerprint of what shapes one image's features (the key of the feature cache with the image hash).</summary>

@@ -365,6 +365,63 @@ public sealed class StateStore : IDisposable
         Query("SELECT image_a, image_b, status, inliers, matches, reasons FROM pair_results WHERE run_id=$r ORDER BY image_a, image_b",
             r => new PairResultRecord(r.GetString(0), r.GetString(1), r.GetString(2), r.GetInt32(3), r.GetInt32(4), r.GetString(5)), ("$r", runId));
 
+    /// <summary>
+    /// When a run started. For a run whose rows were pruned: the start of the next run still in the
+    /// ledger (run ids grow with time, so the pruned run started no later). Null when neither exists.
+    /// </summary>
+    public DateTime? RunStartedUtc(long runId) =>
+        Query("SELECT started FROM runs WHERE run_id >= $r ORDER BY run_id LIMIT 1", r => (DateTime?)new DateTime(r.GetInt64(0), DateTimeKind.Utc), ("$r", runId))
+            .FirstOrDefault();
+
+    /// <summary>
+    /// Deletes the rows (run, pair results, failures) of superseded runs: per set, every finished
+    /// or abandoned run beyond the newest <paramref name="keepOld"/> + 1. A running run and the
+    /// set's current (done) run are never deleted. Returns the deleted run ids per set.
+    /// </summary>
+    public IReadOnlyList<(string SetId, IReadOnlyList<long> Runs)> PruneRuns(int keepOld)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegative(keepOld);
+        lock (_gate)
+        {
+            var victims = new List<(string SetId, long Run)>();
+            using (var cmd = _db.CreateCommand())
+            {
+                cmd.CommandText =
+                    """
+                    SELECT r.set_id, r.run_id FROM runs r LEFT JOIN sets s ON s.set_id = r.set_id
+                    WHERE r.state != 'running' AND (s.done_run IS NULL OR s.done_run != r.run_id)
+                      AND (SELECT COUNT(*) FROM runs n WHERE n.set_id = r.set_id AND n.run_id > r.run_id) > $k
+                    ORDER BY r.set_id, r.run_id
+                    """;
+                cmd.Parameters.AddWithValue("$k", keepOld);
+                using var rd = cmd.ExecuteReader();
+                while (rd.Read())
+                {
+                    victims.Add((rd.GetString(0), rd.GetInt64(1)));
+                }
+            }
+            if (victims.Count == 0)
+            {
+                return [];
+            }
+            using var tx = _db.BeginTransaction();
+            using (var del = _db.CreateCommand())
+            {
+                del.Transaction = tx;
+                del.CommandText = "DELETE FROM pair_results WHERE run_id=$r; DELETE FROM failures WHERE run_id=$r; DELETE FROM runs WHERE run_id=$r;";
+                var pr = del.Parameters.Add("$r", SqliteType.Integer);
+                foreach (var (_, run) in victims)
+                {
+                    pr.Value = run;
+                    del.ExecuteNonQuery();
+                }
+            }
+            tx.Commit();
+            return victims.GroupBy(v => v.SetId, StringComparer.Ordinal)
+                .Select(g => (g.Key, (IReadOnlyList<long>)g.Select(v => v.Run).ToList())).ToList();
+        }
+    }
+
     // ---- failures ----
 
     public void RecordFailure(long? runId, string setId, string path, string reason) =>
