@@ -62,7 +62,16 @@ internal static class ModelParameterization
         double iw = 1 / w;
         u = (h.M11 * x + h.M12 * y + h.M13) * iw;
         v = (h.M21 * x + h.M22 * y + h.M23) * iw;
-        double xw = x * iw, yw = y * iw;
+        FillDerivatives(model, iw, x * iw, y * iw, u, v, du, dv);
+        return double.IsFinite(u) && double.IsFinite(v);
+    }
+
+    /// <summary>
+    /// Derivatives of the mapped point (u, v) with respect to the parameters, given 1/w and the
+    /// point divided by w: row u into du, row v into dv. Shared with the set alignment.
+    /// </summary>
+    internal static void FillDerivatives(MotionModel model, double iw, double xw, double yw, double u, double v, Span<double> du, Span<double> dv)
+    {
         switch (model)
         {
             case MotionModel.Translation:
@@ -82,6 +91,5 @@ internal static class ModelParameterization
                 dv[0] = 0; dv[1] = 0; dv[2] = 0; dv[3] = xw; dv[4] = yw; dv[5] = iw; dv[6] = -v * xw; dv[7] = -v * yw;
                 break;
         }
-        return double.IsFinite(u) && double.IsFinite(v);
     }
 }
