@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using System.Globalization;
 using System.Numerics;
 using System.Text;
@@ -29,7 +30,7 @@ public static class DescriptorPatternGenerator
     /// <summary>The pattern as (x1, y1, x2, y2) per test, 256 tests.</summary>
     public static sbyte[] Generate()
     {
-        var rng = new SplitMix64(Seed);
+        var rng = new SplitMix64Stream(Seed);
         var candidates = CandidateTests(ref rng);
         var (bits, patches) = Outcomes(ref rng, candidates);
         int words = (patches + 63) / 64;
@@ -113,7 +114,7 @@ public static class DescriptorPatternGenerator
         return sb.ToString();
     }
 
-    private static (sbyte X1, sbyte Y1, sbyte X2, sbyte Y2)[] CandidateTests(ref SplitMix64 rng)
+    private static (sbyte X1, sbyte Y1, sbyte X2, sbyte Y2)[] CandidateTests(ref SplitMix64Stream rng)
     {
         var seen = new HashSet<int>();
         var list = new List<(sbyte, sbyte, sbyte, sbyte)>(Candidates);
@@ -136,7 +137,7 @@ public static class DescriptorPatternGenerator
         return [.. list];
     }
 
-    private static (int X, int Y) DiscPoint(ref SplitMix64 rng)
+    private static (int X, int Y) DiscPoint(ref SplitMix64Stream rng)
     {
         while (true)
         {
@@ -149,7 +150,7 @@ public static class DescriptorPatternGenerator
     }
 
     /// <summary>Test outcomes as bitsets: bits[t * words + k] holds patches 64k..64k+63 of test t.</summary>
-    private static (ulong[] Bits, int Patches) Outcomes(ref SplitMix64 rng, (sbyte X1, sbyte Y1, sbyte X2, sbyte Y2)[] tests)
+    private static (ulong[] Bits, int Patches) Outcomes(ref SplitMix64Stream rng, (sbyte X1, sbyte Y1, sbyte X2, sbyte Y2)[] tests)
     {
         var centres = new List<(byte[] Smoothed, int X, int Y, float Angle)>();
         int size = TrainingImageSize, border = BinaryDescriptor.Reach + 1;

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using System.Collections.Concurrent;
 using Seamwright.Core.Imaging;
 
@@ -22,7 +23,7 @@ internal static class NoiseResponse
 
     private static double[] Simulate(double scaleFactor, int blockSize, int levels)
     {
-        var rng = new SplitMix64(0x4E01_5E00_0000_0001UL);
+        var rng = new SplitMix64Stream(0x4E01_5E00_0000_0001UL);
         var image = new GrayImage(SimulatedSide, SimulatedSide);
         for (int i = 0; i < image.Pixels.Length; i++)
         {

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 namespace Seamwright.Core.Features;
 
 /// <summary>
@@ -8,7 +9,7 @@ namespace Seamwright.Core.Features;
 /// </summary>
 internal static class PatternTrainingImages
 {
-    public static byte[] Generate(ref SplitMix64 rng, int size)
+    public static byte[] Generate(ref SplitMix64Stream rng, int size)
     {
         var f = new double[size * size];
         AddValueNoise(ref rng, f, size);
@@ -27,7 +28,7 @@ internal static class PatternTrainingImages
         return img;
     }
 
-    private static void AddValueNoise(ref SplitMix64 rng, double[] f, int size)
+    private static void AddValueNoise(ref SplitMix64Stream rng, double[] f, int size)
     {
         double amplitude = 90;
         for (int cell = 32; cell >= 4; cell /= 2, amplitude *= 0.55)
@@ -62,7 +63,7 @@ internal static class PatternTrainingImages
 
     private static double Smooth(double t) => t * t * (3 - 2 * t);
 
-    private static void AddShape(ref SplitMix64 rng, double[] f, int size)
+    private static void AddShape(ref SplitMix64Stream rng, double[] f, int size)
     {
         int kind = rng.NextInt(4);
         double cx = rng.NextDouble() * size, cy = rng.NextDouble() * size;

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Features;
 
 namespace Seamwright.Core.Tests.Features;
@@ -8,7 +9,7 @@ public class BinaryDescriptorTests
     public void Compute_EmbeddedPatternFastPath_MatchesTestByTestPathBitForBit()
     {
         const int W = 97, H = 83;
-        var rng = new SplitMix64(0xD35C_0001UL);
+        var rng = new SplitMix64Stream(0xD35C_0001UL);
         var image = new byte[W * H];
         for (int i = 0; i < image.Length; i++)
         {

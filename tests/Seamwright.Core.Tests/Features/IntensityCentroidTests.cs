@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Features;
 
 namespace Seamwright.Core.Tests.Features;
@@ -8,7 +9,7 @@ public class IntensityCentroidTests
     public void Angle_VectorPath_MatchesPlainPathExactly()
     {
         const int W = 71, H = 64;
-        var rng = new SplitMix64(0x1C_0001UL);
+        var rng = new SplitMix64Stream(0x1C_0001UL);
         var image = new byte[W * H];
         for (int i = 0; i < image.Length; i++)
         {

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using System.Runtime.InteropServices;
 using OpenCvSharp;
 using Seamwright.Core.Features;
@@ -52,7 +53,7 @@ public class OpenCvReferenceTests
     [Fact]
     public void Hamming_RandomDescriptors_MatchesOpenCvNormHamming()
     {
-        var rng = new SplitMix64(42);
+        var rng = new SplitMix64Stream(42);
         for (int t = 0; t < 200; t++)
         {
             var a = new Descriptor256(rng.Next(), rng.Next(), rng.Next(), rng.Next());

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Features;
 using Seamwright.Core.Matching;
 
@@ -13,7 +14,7 @@ public class HammingMatcherTests
 
     private static Descriptor256[] Random(int n, ulong seed)
     {
-        var r = new SplitMix64(seed);
+        var r = new SplitMix64Stream(seed);
         return [.. Enumerable.Range(0, n).Select(_ => new Descriptor256(r.Next(), r.Next(), r.Next(), r.Next()))];
     }
 
