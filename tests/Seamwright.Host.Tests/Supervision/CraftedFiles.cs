@@ -5,6 +5,7 @@ using SixLabors.ImageSharp.Formats.Jpeg;
 using SixLabors.ImageSharp.Formats.Png;
 using SixLabors.ImageSharp.Formats.Tiff;
 using SixLabors.ImageSharp.PixelFormats;
+using Seamwright.Tests.Shared;
 
 namespace Seamwright.Host.Tests.Supervision;
 
@@ -56,9 +57,9 @@ internal static class CraftedFiles
         BinaryPrimitives.WriteInt32BigEndian(ihdr.AsSpan(4), 60000);
         ihdr[8] = 8; // bit depth
         ihdr[9] = 6; // RGBA
-        WriteChunk(ms, "IHDR", ihdr);
-        WriteChunk(ms, "IDAT", [0x78, 0x9C, 0x03, 0x00, 0x00, 0x00, 0x00, 0x01]);
-        WriteChunk(ms, "IEND", []);
+        ms.Write(PngChunks.Chunk("IHDR", ihdr));
+        ms.Write(PngChunks.Chunk("IDAT", [0x78, 0x9C, 0x03, 0x00, 0x00, 0x00, 0x00, 0x01]));
+        ms.Write(PngChunks.Chunk("IEND", []));
         return ms.ToArray();
     }
 
@@ -147,33 +148,5 @@ internal static class CraftedFiles
         using var ms = new MemoryStream();
         image.Save(ms, encoder);
         return ms.ToArray();
-    }
-
-    private static void WriteChunk(Stream s, string type, byte[] data)
-    {
-        Span<byte> len = stackalloc byte[4];
-        BinaryPrimitives.WriteInt32BigEndian(len, data.Length);
-        s.Write(len);
-        byte[] typeBytes = System.Text.Encoding.ASCII.GetBytes(type);
-        s.Write(typeBytes);
-        s.Write(data);
-        Span<byte> c = stackalloc byte[4];
-        BinaryPrimitives.WriteUInt32BigEndian(c, Crc32([.. typeBytes, .. data]));
-        s.Write(c);
-    }
-
-    /// <summary>CRC-32 as PNG defines it (ISO/IEC 15948 annex D: polynomial 0xEDB88320, reflected).</summary>
-    private static uint Crc32(byte[] bytes)
-    {
-        uint crc = 0xFFFFFFFF;
-        foreach (byte b in bytes)
-        {
-            crc ^= b;
-            for (int k = 0; k < 8; k++)
-            {
-                crc = (crc & 1) != 0 ? 0xEDB88320 ^ (crc >> 1) : crc >> 1;
-            }
-        }
-        return ~crc;
     }
 }

@@ -1,3 +1,4 @@
+using Seamwright.Tests.Shared;
 using System.Buffers.Binary;
 using System.Security.Cryptography;
 using Seamwright.Core.Imaging;
@@ -36,17 +37,6 @@ internal static class TestFiles
         return ms.ToArray();
     }
 
-    /// <summary>A valid PNG chunk with its CRC.</summary>
-    public static byte[] PngChunk(string type, ReadOnlySpan<byte> data)
-    {
-        var chunk = new byte[12 + data.Length];
-        BinaryPrimitives.WriteUInt32BigEndian(chunk, (uint)data.Length);
-        System.Text.Encoding.ASCII.GetBytes(type).CopyTo(chunk, 4);
-        data.CopyTo(chunk.AsSpan(8));
-        BinaryPrimitives.WriteUInt32BigEndian(chunk.AsSpan(8 + data.Length), Crc32(chunk.AsSpan(4, 4 + data.Length)));
-        return chunk;
-    }
-
     /// <summary>A PNG whose header claims the given size, with a token IDAT and a proper IEND.</summary>
     public static byte[] PngClaimingSize(uint width, uint height)
     {
@@ -56,7 +46,7 @@ internal static class TestFiles
         ihdr[8] = 8; // bit depth
         ihdr[9] = 0; // gray
         byte[] idat = [0x78, 0x9C, 0x63, 0x00, 0x00, 0x00, 0x01, 0x00, 0x01]; // zlib stream of one zero byte
-        return [0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A, .. PngChunk("IHDR", ihdr), .. PngChunk("IDAT", idat), .. PngChunk("IEND", [])];
+        return [0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A, .. PngChunks.Chunk("IHDR", ihdr), .. PngChunks.Chunk("IDAT", idat), .. PngChunks.Chunk("IEND", [])];
     }
 
     /// <summary>35 bytes: a BMP file header claiming a 0x7FFFFFFF pixel offset and a 40-byte info header (after ImageSharp#3074).</summary>
@@ -106,21 +96,6 @@ internal static class TestFiles
     }
 
     public static string Hash(string path) => Convert.ToHexString(SHA256.HashData(System.IO.File.ReadAllBytes(path)));
-
-    private static uint Crc32(ReadOnlySpan<byte> data)
-    {
-        // PNG CRC-32 (ISO 3309 polynomial 0xEDB88320, as in the PNG specification, annex D).
-        uint crc = 0xFFFFFFFF;
-        foreach (byte d in data)
-        {
-            crc ^= d;
-            for (int k = 0; k < 8; k++)
-            {
-                crc = (crc & 1) != 0 ? 0xEDB88320 ^ (crc >> 1) : crc >> 1;
-            }
-        }
-        return ~crc;
-    }
 
     public static PngEncoder GrayPng => new() { ColorType = PngColorType.Grayscale, BitDepth = PngBitDepth.Bit8 };
 }
