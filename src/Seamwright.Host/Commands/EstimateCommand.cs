@@ -92,39 +92,13 @@ internal static class EstimateCommand
                     options = options with { Refine = false };
                     break;
                 case "--model":
-                    string? m = Value();
-                    MotionModel? model = m switch
-                    {
-                        "homography" => MotionModel.Homography,
-                        "affine" => MotionModel.Affine,
-                        "similarity" => MotionModel.Similarity,
-                        "translation" => MotionModel.Translation,
-                        _ => null,
-                    };
-                    if (model is null)
-                    {
-                        error = $"--model expects homography, affine, similarity or translation (got '{m}')";
-                        return false;
-                    }
-                    options = options with { Model = model.Value };
-                    break;
                 case "--threshold":
-                    string? t = Value();
-                    if (!double.TryParse(t, NumberStyles.Float, CultureInfo.InvariantCulture, out double px) || !double.IsFinite(px) || px <= 0)
-                    {
-                        error = $"--threshold expects a positive number of pixels (got '{t}')";
-                        return false;
-                    }
-                    options = options with { Threshold = px };
-                    break;
                 case "--seed":
-                    string? s = Value();
-                    if (!ulong.TryParse(s, NumberStyles.None, CultureInfo.InvariantCulture, out ulong seed))
+                    error = EstimationArguments.Apply(a, Value(), "pixels", ref options);
+                    if (error is not null)
                     {
-                        error = $"--seed expects a non-negative integer (got '{s}')";
                         return false;
                     }
-                    options = options with { Seed = seed };
                     break;
                 case "--size-a":
                 case "--size-b":

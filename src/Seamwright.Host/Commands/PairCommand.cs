@@ -99,36 +99,13 @@ internal static class PairCommand
                     json = true;
                     break;
                 case "--model":
-                    MotionModel? model = value switch
-                    {
-                        "homography" => MotionModel.Homography,
-                        "affine" => MotionModel.Affine,
-                        "similarity" => MotionModel.Similarity,
-                        "translation" => MotionModel.Translation,
-                        _ => null,
-                    };
-                    if (model is null)
-                    {
-                        error = $"--model expects homography, affine, similarity or translation (got '{value}')";
-                        return false;
-                    }
-                    options = options with { Model = model.Value };
-                    break;
                 case "--threshold":
-                    if (!double.TryParse(value, NumberStyles.Float, CultureInfo.InvariantCulture, out double px) || !double.IsFinite(px) || px <= 0)
-                    {
-                        error = $"--threshold expects a positive number of full-resolution pixels (got '{value}')";
-                        return false;
-                    }
-                    options = options with { Threshold = px };
-                    break;
                 case "--seed":
-                    if (!ulong.TryParse(value, NumberStyles.None, CultureInfo.InvariantCulture, out ulong seed))
+                    error = EstimationArguments.Apply(a, value, "full-resolution pixels", ref options);
+                    if (error is not null)
                     {
-                        error = $"--seed expects a non-negative integer (got '{value}')";
                         return false;
                     }
-                    options = options with { Seed = seed };
                     break;
                 case "--mask-a":
                 case "--mask-b":
