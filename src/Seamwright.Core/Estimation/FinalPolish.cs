@@ -32,7 +32,6 @@ internal static class FinalPolish
 
     public static PolishResult Run(MotionModel model, ReadOnlySpan<Correspondence> matches, Transform2D initial, ImageSize sizeA, double threshold, int maxRounds, double tolerance)
     {
-        var corners = Transform2D.Corners(sizeA.Width, sizeA.Height);
         int minimal = Quality.PairDecision.MinimalSize(model);
         var current = initial;
         var inliers = TransferError.InlierIndices(current, matches, threshold);
@@ -55,6 +54,8 @@ internal static class FinalPolish
                 {
                     subset[i] = matches[inliers[i]];
                 }
+                // Corner uncertainty over the overlap (the inliers' box), where a stitch uses the model.
+                var corners = OverlapRegion.Corners(matches, inliers, sizeA);
                 var fit = LevenbergMarquardtFit.Fit(model, subset.AsSpan(0, inliers.Length), current, corners);
                 // The covariance of the least-squares fit over the current set stands for the
                 // polished model's even when the step is shortened (the same data decide both).

@@ -148,7 +148,10 @@ public static class PairEstimator
         double cornerSigmaPx, ImageSize sizeA, ImageSize sizeB, EstimationOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
-        string? sanity = transform is { } h ? TransformSanity.FindProblem(h, sizeA, options.Sanity) : null;
+        // Judged where the images overlap (the inliers' box), not over the whole first image.
+        string? sanity = transform is { } h
+            ? TransformSanity.FindProblem(h, OverlapRegion.Corners(matches, TransferError.InlierIndices(h, matches, options.Threshold), sizeA), options.Sanity, "image's overlap")
+            : null;
         int overlap = transform is { } t ? OverlapCount(matches, t, sizeB) : 0;
         var evidence = new PairEvidence(options.Model, transform, matches.Length, overlap, consensus, runnerUpConsensus, cornerSigmaPx, options.Threshold, sanity);
         return PairDecision.Decide(evidence, options.Decision);

@@ -1,6 +1,6 @@
 namespace Seamwright.Core.Geometry;
 
-/// <summary>Bounds a usable pairwise transform must respect over the first image's rectangle.</summary>
+/// <summary>Bounds a usable pairwise transform must respect over the region of the first image it is judged on.</summary>
 /// <param name="MaxScale">
 /// Largest local stretch or shrink (singular value of the local Jacobian, or its inverse) at the
 /// rectangle's corners. Default 20 (judgement): the homogr set reaches about 11 at a far corner of a
@@ -13,28 +13,35 @@ namespace Seamwright.Core.Geometry;
 public sealed record SanityLimits(double MaxScale = 20, double MaxPerspectiveRatio = 20);
 
 /// <summary>
-/// Sanity checks for an estimated transform over a given rectangle: finite entries, every corner
-/// in front (w &gt; 0; w is linear, so the whole rectangle is), orientation kept (positive
-/// Jacobian determinant; a mirror image is never a valid overlap), bounded scale and perspective.
+/// Sanity checks for an estimated transform over a convex region given by its corners (the whole
+/// rectangle, or the overlap of a pair, <see cref="OverlapRegion"/>): finite entries, every corner
+/// in front (w &gt; 0; w is linear, so the whole region is), orientation kept (positive Jacobian
+/// determinant; a mirror image is never a valid overlap), bounded scale and perspective.
 /// </summary>
 public static class TransformSanity
 {
-    /// <summary>Returns null when the transform passes, otherwise the first problem in words.</summary>
-    public static string? FindProblem(in Transform2D h, ImageSize rectangle, SanityLimits limits)
+    /// <summary>Checks over the whole rectangle; null when the transform passes, otherwise the first problem in words.</summary>
+    public static string? FindProblem(in Transform2D h, ImageSize rectangle, SanityLimits limits) =>
+        FindProblem(h, Transform2D.Corners(Math.Max(rectangle.Width, 1), Math.Max(rectangle.Height, 1)), limits, "image");
+
+    /// <summary>
+    /// Checks over the convex region with the given corners (<paramref name="regionName"/> names
+    /// it in the messages); null when the transform passes, otherwise the first problem in words.
+    /// </summary>
+    public static string? FindProblem(in Transform2D h, ReadOnlySpan<(double X, double Y)> corners, SanityLimits limits, string regionName)
     {
         ArgumentNullException.ThrowIfNull(limits);
         if (!h.IsFinite)
         {
             return "the transform has non-finite entries";
         }
-        var corners = Transform2D.Corners(Math.Max(rectangle.Width, 1), Math.Max(rectangle.Height, 1));
         double wMin = double.PositiveInfinity, wMax = 0;
         foreach (var (x, y) in corners)
         {
             double w = h.W(x, y);
             if (!(w > 0))
             {
-                return "part of the first image maps behind the viewer (w <= 0 at a corner)";
+                return $"part of the first {regionName} maps behind the viewer (w <= 0 at a corner)";
             }
             wMin = Math.Min(wMin, w);
             wMax = Math.Max(wMax, w);
@@ -53,7 +60,7 @@ public static class TransformSanity
         }
         if (wMax / wMin > limits.MaxPerspectiveRatio)
         {
-            return FormattableString.Invariant($"perspective ratio {wMax / wMin:0.##} over the first image exceeds {limits.MaxPerspectiveRatio}");
+            return FormattableString.Invariant($"perspective ratio {wMax / wMin:0.##} over the first {regionName} exceeds {limits.MaxPerspectiveRatio}");
         }
         return null;
     }
