@@ -11,6 +11,10 @@ internal static class Program
         {
             return PairComparisonReport.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "scale")
+        {
+            return Scale.ScaleBenchmark.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "profile-features")
         {
             return FeatureProfile.Run(args[1..]);
