@@ -67,7 +67,8 @@ internal static class CommandLine
         Settings: config/appsettings.json beside the executable (or --config FILE), environment
         variables (Seamwright__Engine=...), and overrides such as --Seamwright:Service:StableSeconds=5.
         Exit codes: 0 all pairs accepted, 3 weak or rejected pairs or bad files, 2 bad arguments or
-        settings, 1 fatal error.
+        settings, 1 fatal error; status: 0 service running and healthy, 4 no service running,
+        5 running but unhealthy or not responding.
         """;
 
     private static int Version()

@@ -1,4 +1,6 @@
 using System.Globalization;
+using System.Text.Json;
+using System.Text.Json.Serialization;
 using Seamwright.Host.Configuration;
 using Seamwright.Pipeline.Settings;
 using Seamwright.Pipeline.State;
@@ -6,14 +8,23 @@ using Seamwright.Pipeline.State;
 namespace Seamwright.Host.Commands;
 
 /// <summary>
-/// <c>seamwright status [PATH] [--output DIR] [--config FILE]</c>: what the ledger of an output root
-/// says: sets done, pending, stale, failed (with reasons), and bad files with reasons. PATH is an
-/// output root or a watched root; without it, every configured root. Reads only; works while the
-/// service runs.
+/// <c>seamwright status [PATH] [--json] [--output DIR] [--config FILE]</c>: what the ledger of an
+/// output root says (sets done, pending, stale, failed with reasons; bad files with reasons) and
+/// the state of its service from the heartbeat file (running, stopped, not-responding,
+/// not-started). PATH is an output root or a watched root; without it, every configured root.
+/// Reads only; works while the service runs. Exit code: 0 running and healthy, 4 no service
+/// running, 5 running but unhealthy or not responding, 2 bad arguments or a PATH that does not
+/// exist (the worst over the roots).
 /// </summary>
 internal static class StatusCommand
 {
-    public const string Usage = "status [PATH] [--output DIR] [--config FILE]";
+    public const string Usage = "status [PATH] [--json] [--output DIR] [--config FILE]";
+
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web)
+    {
+        WriteIndented = true,
+        DefaultIgnoreCondition = JsonIgnoreCondition.Never,
+    };
 
     public static int Execute(string[] args)
     {
@@ -21,22 +32,27 @@ internal static class StatusCommand
         SeamwrightOptions options;
         try
         {
-            a = CommandArgs.Parse(args, ["--output", "--config"], []);
+            a = CommandArgs.Parse(args, ["--output", "--config"], ["--json"]);
             options = SettingsLoader.Bind(SettingsLoader.Build(a.Value("--config"), a.Overrides.ToArray()));
         }
         catch (SettingsException e)
         {
             return RunCommand.Bad(e.Message);
         }
-        var outputs = new List<string>();
         if (a.Positional.Count > 1)
         {
             return RunCommand.Bad("status takes at most one PATH: seamwright " + Usage);
         }
+        var outputs = new List<string>();
         if (a.Positional.Count == 1)
         {
             string p = Path.GetFullPath(a.Positional[0]);
+            if (!Directory.Exists(p))
+            {
+                return RunCommand.Bad($"{p} does not exist (give an output root or a watched root)");
+            }
             outputs.Add(File.Exists(Path.Combine(p, StateStore.StateFolder, StateStore.DatabaseName))
+                || File.Exists(Path.Combine(p, StateStore.StateFolder, Operations.HeartbeatFile.FileName))
                 ? p
                 : options.RootFor(p, a.Value("--output") is { } o ? Path.GetFullPath(o) : null).EffectiveOutput);
         }
@@ -48,70 +64,60 @@ internal static class StatusCommand
         {
             return RunCommand.Bad("no PATH given and no roots configured: seamwright " + Usage);
         }
-        int code = ExitCodes.Ok;
-        foreach (var output in outputs)
+        var now = DateTimeOffset.UtcNow;
+        var statuses = outputs.Select(o => RootStatus.Read(o, now)).ToList();
+        if (a.Flag("--json"))
         {
-            code = Math.Max(code, Print(output));
+            // One object for one root; several roots: {"schema", "roots": [...]}.
+            object doc = statuses.Count == 1 ? statuses[0] : new { schema = RootStatus.SchemaId, roots = statuses };
+            System.Console.Out.WriteLine(JsonSerializer.Serialize(doc, Json));
         }
-        return code;
+        else
+        {
+            foreach (var s in statuses)
+            {
+                System.Console.Out.Write(Text(s, now));
+            }
+        }
+        return statuses.Max(s => s.ExitCode);
     }
 
-    private static int Print(string output)
+    /// <summary>The text form of one root's status.</summary>
+    internal static string Text(RootStatus s, DateTimeOffset now)
     {
-        StateStore store;
-        try
+        var w = new StringWriter(CultureInfo.InvariantCulture);
+        if (!s.Processed)
         {
-            store = StateStore.Open(output, readOnly: true);
+            w.WriteLine($"{s.OutputRoot}: no Seamwright state (nothing processed yet)");
         }
-        catch (FileNotFoundException)
+        else
         {
-            System.Console.Out.WriteLine($"{output}: no Seamwright state (nothing processed yet)");
-            return ExitCodes.Ok;
-        }
-        using (store)
-        {
-            var sets = store.Sets();
-            var runs = store.Runs();
-            var files = store.Files();
-            var w = System.Console.Out;
-            w.WriteLine($"Output root {output}");
-            w.WriteLine($"  sets: {sets.Count} ({Count(sets, SetStates.Done)} done, {Count(sets, SetStates.Pending)} pending, {Count(sets, SetStates.Running)} running, {Count(sets, SetStates.Stale)} stale, {Count(sets, SetStates.Failed)} failed)");
-            int incomplete = sets.Count(s => s.State == SetStates.Done && s.Incomplete);
-            if (incomplete > 0)
+            w.WriteLine($"Output root {s.OutputRoot}");
+            var c = s.Sets;
+            w.WriteLine($"  sets: {c.Total} ({c.Done} done, {c.Pending} pending, {c.Running} running, {c.Stale} stale, {c.Failed} failed)");
+            if (c.Incomplete > 0)
             {
-                w.WriteLine($"  {incomplete} done sets were processed incomplete (maximum wait reached)");
+                w.WriteLine($"  {c.Incomplete} done sets were processed incomplete (maximum wait reached)");
             }
-            var live = files.Where(f => f.State != "removed").ToList();
-            w.WriteLine($"  files: {live.Count} ({live.Count(f => f.State == "analysed")} analysed, {live.Count(f => f.State == "bad")} bad, {live.Count(f => f.State == "seen")} waiting)");
-            var done = runs.Where(r => r.State == "done" && r.Summary is not null).ToList();
-            w.WriteLine($"  runs: {runs.Count} ({done.Count} finished, {runs.Count(r => r.State == "abandoned")} abandoned, {runs.Count(r => r.State == "running")} running)");
-            var current = sets.Where(s => s.DoneRun is not null).Select(s => runs.FirstOrDefault(r => r.RunId == s.DoneRun)?.Summary).OfType<RunSummary>().ToList();
-            w.WriteLine($"  pairs in the latest runs: {current.Sum(s => s.Pairs)} ({current.Sum(s => s.Accepted)} accepted, {current.Sum(s => s.Weak)} weak, {current.Sum(s => s.Rejected)} rejected)");
-            foreach (var s in sets.Where(s => s.State is SetStates.Pending or SetStates.Stale or SetStates.Running))
+            w.WriteLine($"  files: {s.Files.Total} ({s.Files.Analysed} analysed, {s.Files.Bad} bad, {s.Files.Waiting} waiting)");
+            w.WriteLine($"  runs: {s.Runs.Total} ({s.Runs.Finished} finished, {s.Runs.Abandoned} abandoned, {s.Runs.Running} running)");
+            w.WriteLine($"  pairs in the latest runs: {s.Pairs.Total} ({s.Pairs.Accepted} accepted, {s.Pairs.Weak} weak, {s.Pairs.Rejected} rejected)");
+            foreach (var x in s.SetsNotDone)
             {
-                w.WriteLine($"  {s.State,-8} {s.SetId}" + (s.Reason is null ? "" : "  (" + s.Reason + ")"));
+                w.WriteLine(x.State == SetStates.Failed
+                    ? $"  failed   {x.Name}: {x.Reason}"
+                    : $"  {x.State,-8} {x.Name}" + (x.Reason is null ? "" : "  (" + x.Reason + ")"));
             }
-            foreach (var s in sets.Where(s => s.State == SetStates.Failed))
+            foreach (var f in s.BadFiles)
             {
-                w.WriteLine($"  failed   {s.SetId}: {s.Reason}");
+                w.WriteLine($"  bad file {f.Name}: {f.Reason}");
             }
-            foreach (var f in live.Where(f => f.State == "bad"))
+            if (s.LastFinishedRun is { } last)
             {
-                w.WriteLine($"  bad file {f.Path}: {f.Reason}");
-            }
-            if (done.Count > 0)
-            {
-                var last = done[^1];
-                w.WriteLine($"  last finished run: {last.RunId} of {last.SetId} at {last.FinishedUtc?.ToString("u", CultureInfo.InvariantCulture)}");
+                w.WriteLine($"  last finished run: {last.RunId} of {last.Set} at {last.FinishedUtc?.ToString("u", CultureInfo.InvariantCulture)}");
             }
         }
-        // The running service's live figures (queue, latency, rates, quarantine, health), from the
-        // heartbeat file it rewrites while healthy; stale after three missed beats.
-        var heartbeat = Operations.HeartbeatFile.TryRead(Path.Combine(output, StateStore.StateFolder, Operations.HeartbeatFile.FileName));
-        double beat = heartbeat is { HeartbeatSeconds: > 0 } ? heartbeat.HeartbeatSeconds : 10;
-        System.Console.Out.Write(Operations.StatusReport.Render(heartbeat, DateTimeOffset.UtcNow, TimeSpan.FromSeconds(3 * beat)));
-        return ExitCodes.Ok;
+        w.Write(Operations.StatusReport.Render(s.Service.State, s.Service.Note, s.Service.Figures, now));
+        return w.ToString();
     }
-
-    private static int Count(IReadOnlyList<SetRecord> sets, string state) => sets.Count(s => s.State == state);
 }

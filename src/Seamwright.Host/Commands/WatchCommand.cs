@@ -118,6 +118,7 @@ internal static class WatchCommand
             builder.Services.AddHostedService<WorkerService>();
             using var host = builder.Build();
             var loops = HostExit.LoopsOf(host);
+            var operations = host.Services.GetService<OperationsLoop>(); // resolved now: Run disposes the host's services
             using var reload = ChangeToken.OnChange(((IConfiguration)builder.Configuration).GetReloadToken, () => Reload(builder.Configuration, a, runtime));
             host.Run();
             if (HostExit.CodeFor(loops, runtime.Fatal) != ExitCodes.Ok)
@@ -125,6 +126,7 @@ internal static class WatchCommand
                 Log.Fatal(runtime.Fatal ?? HostExit.FirstFault(loops), "Stopped by a fatal error");
                 return ExitCodes.Fatal;
             }
+            operations?.WriteStopped();
             Log.Information("Stopped");
             return ExitCodes.Ok;
         }

@@ -11,6 +11,9 @@ internal interface IServiceFigureSource
 
     /// <summary>Quarantined files, each "path: reason".</summary>
     IReadOnlyList<string> Quarantined();
+
+    /// <summary>Sets waiting for files to settle (quiet period) or for their completion rule, each in words.</summary>
+    IReadOnlyList<string> Waiting();
 }
 
 internal sealed class NoServiceFigures : IServiceFigureSource
@@ -20,4 +23,6 @@ internal sealed class NoServiceFigures : IServiceFigureSource
     public IReadOnlyList<string> StuckSets() => [];
 
     public IReadOnlyList<string> Quarantined() => [];
+
+    public IReadOnlyList<string> Waiting() => [];
 }

@@ -10,6 +10,12 @@ internal sealed record OperationsFigures
     public required int ProcessId { get; init; }
     public required bool Healthy { get; init; }
 
+    /// <summary><c>running</c> while the service beats; <c>stopped</c> written once at a clean stop.</summary>
+    public string State { get; init; } = ServiceState.Running;
+
+    /// <summary>The machine the service runs on (its process id is checked only there).</summary>
+    public string? Machine { get; init; }
+
     /// <summary>Seconds between heartbeats: a reader calls the file stale after three missed beats.</summary>
     public double HeartbeatSeconds { get; init; }
     public IReadOnlyList<string> Problems { get; init; } = [];
@@ -33,6 +39,9 @@ internal sealed record OperationsFigures
     /// <summary>Sets waiting past their maximum wait, with how long.</summary>
     public IReadOnlyList<string> StuckSets { get; init; } = [];
 
+    /// <summary>Sets still waiting for their files to settle or for their completion rule, in words.</summary>
+    public IReadOnlyList<string> Waiting { get; init; } = [];
+
     /// <summary>Quarantined files with their reasons.</summary>
     public IReadOnlyList<string> Quarantined { get; init; } = [];
 
@@ -43,8 +52,8 @@ internal sealed record OperationsFigures
     public bool IntakePaused { get; init; }
     public string? PauseReason { get; init; }
 
-    /// <summary>Per watched root: last canary delivery and how often its watcher was recreated.</summary>
-    public IReadOnlyList<CanaryState> Canaries { get; init; } = [];
+    /// <summary>Per watched root: changes its watcher missed (found by periodic rescans) and how often it was recreated.</summary>
+    public IReadOnlyList<WatcherState> Watchers { get; init; } = [];
 
     public long RigDeviations { get; init; }
 }

@@ -6,7 +6,7 @@ namespace Seamwright.Host.Operations;
 
 /// <summary>
 /// One pass of the health and housekeeping loop, separated from its timer so tests can drive
-/// it: check health, free disk space and canaries; build the figures; while healthy, ping the
+/// it: check health and free disk space; build the figures; while healthy, ping the
 /// systemd watchdog and rewrite the heartbeat files; log the figures line and run retention
 /// when due. While unhealthy nothing is pinged or rewritten, so systemd's watchdog and any
 /// outside monitor of the heartbeat file see the stall.
@@ -21,14 +21,13 @@ internal sealed class OperationsLoop(
     IReadOnlyList<string> heartbeatPaths,
     SystemdNotifier? notifier = null,
     DiskSpaceGuard? disk = null,
-    CanaryProbe? canary = null,
+    MissedEventDetector? watchers = null,
     WorkerPool? pool = null,
     RetentionSweeper? retention = null)
 {
     public const string LoopName = "operations";
 
     private DateTimeOffset _nextFiguresLog = DateTimeOffset.MinValue;
-    private DateTimeOffset _nextCanary = DateTimeOffset.MinValue;
     private DateTimeOffset _nextRetention = DateTimeOffset.MinValue;
     private string? _lastProblems;
     private string? _lastDrift;
@@ -50,14 +49,6 @@ internal sealed class OperationsLoop(
                 logger.LogInformation("{DiskChange}", change);
             }
         }
-        if (canary is not null && now >= _nextCanary)
-        {
-            foreach (string note in canary.Tick())
-            {
-                logger.LogWarning("Canary: {Note}", note);
-            }
-            _nextCanary = now + TimeSpan.FromSeconds(options.CanarySeconds);
-        }
 
         var report = health.Evaluate();
         var problems = report.Problems.ToList();
@@ -76,12 +67,14 @@ internal sealed class OperationsLoop(
             QueueDepth = service.QueueDepth,
             StuckSets = service.StuckSets(),
             Quarantined = service.Quarantined(),
+            Waiting = service.Waiting(),
+            Machine = Environment.MachineName,
             DecodeJobs = counters?.Jobs ?? 0,
             WorkerKills = counters?.Kills ?? 0,
             PeakWorkerMegabytes = (counters?.PeakWorkerBytes ?? 0) >> 20,
             IntakePaused = disk?.Paused ?? false,
             PauseReason = disk?.PauseReason,
-            Canaries = canary?.States() ?? [],
+            Watchers = watchers?.States() ?? [],
         });
         Last = figures;
 
@@ -134,6 +127,27 @@ internal sealed class OperationsLoop(
             }
         }
         return figures;
+    }
+
+    /// <summary>
+    /// At a clean stop: the heartbeat files say <c>stopped</c> (not healthy), so `status` tells a
+    /// stop from a hang at once.
+    /// </summary>
+    public void WriteStopped()
+    {
+        var last = Last ?? metrics.Fill(new OperationsFigures { At = time.GetUtcNow(), ProcessId = Environment.ProcessId, Healthy = false });
+        var stopped = last with { At = time.GetUtcNow(), Healthy = false, State = ServiceState.Stopped, Machine = Environment.MachineName, QueueDepth = 0, Waiting = [] };
+        foreach (string path in heartbeatPaths)
+        {
+            try
+            {
+                HeartbeatFile.Write(path, stopped);
+            }
+            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+            {
+                logger.LogWarning("Cannot write heartbeat file {Path}: {Message}", path, ex.Message);
+            }
+        }
     }
 
     private void LogFigures(OperationsFigures f) =>

@@ -12,9 +12,6 @@ internal sealed record OperationsOptions
     /// <summary>Seconds between the structured figures log lines (10..86400). Default 300.</summary>
     public double FiguresLogSeconds { get; init; } = 300;
 
-    /// <summary>Seconds between canary writes per watched root; 0 turns the canary off (0 or 5..3600). Default 60.</summary>
-    public double CanarySeconds { get; init; } = 60;
-
     /// <summary>Intake pauses when an output volume has less free space than this, MiB (0 = never). Default 1024.</summary>
     public long PauseBelowFreeMegabytes { get; init; } = 1024;
 
@@ -41,7 +38,6 @@ internal sealed record OperationsOptions
         var problems = new List<string>();
         Check(HeartbeatSeconds is >= 1 and <= 300, "Operations:HeartbeatSeconds must be 1..300");
         Check(FiguresLogSeconds is >= 10 and <= 86400, "Operations:FiguresLogSeconds must be 10..86400");
-        Check(CanarySeconds == 0 || CanarySeconds is >= 5 and <= 3600, "Operations:CanarySeconds must be 0 (off) or 5..3600");
         Check(PauseBelowFreeMegabytes >= 0, "Operations:PauseBelowFreeMegabytes must be 0 or more");
         Check(ResumeMarginMegabytes >= 0, "Operations:ResumeMarginMegabytes must be 0 or more");
         Check(LogRetentionDays >= 0 && ConfidenceLogRetentionDays >= 0 && FeatureCacheRetentionDays >= 0,

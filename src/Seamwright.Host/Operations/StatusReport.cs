@@ -9,19 +9,29 @@ internal static class StatusReport
     public static string OneLine(OperationsFigures f) => string.Create(CultureInfo.InvariantCulture,
         $"{(f.Healthy ? "healthy" : "UNHEALTHY")}; queue {f.QueueDepth}; p95 {Seconds(f.ArrivalToOutputP95Seconds)}; rejected {Rate(f.RejectedRate)}; quarantined {f.Quarantined.Count}{(f.IntakePaused ? "; INTAKE PAUSED" : "")}");
 
-    /// <summary>The service block of `seamwright status`; <paramref name="now"/> judges the heartbeat's age.</summary>
-    public static string Render(OperationsFigures? f, DateTimeOffset now, TimeSpan staleAfter)
+    /// <summary>
+    /// The service block of `seamwright status`: the judged state (running, stopped,
+    /// not-responding, not-started) and, while a service runs or stopped responding, the figures of
+    /// its last heartbeat; <paramref name="now"/> judges ages.
+    /// </summary>
+    public static string Render(string state, string? note, OperationsFigures? f, DateTimeOffset now)
     {
         var w = new StringBuilder();
-        if (f is null)
+        if (f is null || state == ServiceState.NotStarted)
         {
-            w.AppendLine("  service: no heartbeat file (the service has not run here, or cannot write its state folder)");
+            w.AppendLine(CultureInfo.InvariantCulture, $"  service: not started ({note})");
             return w.ToString();
         }
         var age = now - f.At;
-        bool stale = age > staleAfter;
-        string state = stale ? $"NOT RESPONDING (heartbeat {Age(age)} old; last known state follows)" : f.Healthy ? "healthy" : "UNHEALTHY";
-        w.AppendLine(CultureInfo.InvariantCulture, $"  service: {state}, pid {f.ProcessId}, heartbeat {Age(age)} ago");
+        if (state == ServiceState.Stopped)
+        {
+            w.AppendLine(CultureInfo.InvariantCulture, $"  service: stopped ({note}), pid {f.ProcessId}, last heartbeat {Age(age)} ago");
+            return w.ToString();
+        }
+        string head = state == ServiceState.NotResponding
+            ? $"NOT RESPONDING (heartbeat {Age(age)} old; last known state follows)"
+            : f.Healthy ? "running, healthy" : "running, UNHEALTHY";
+        w.AppendLine(CultureInfo.InvariantCulture, $"  service: {head}, pid {f.ProcessId}, heartbeat {Age(age)} ago");
         foreach (string p in f.Problems)
         {
             w.AppendLine(CultureInfo.InvariantCulture, $"    problem: {p}");
@@ -50,11 +60,15 @@ internal static class StatusReport
         {
             w.AppendLine(CultureInfo.InvariantCulture, $"  INTAKE PAUSED: {f.PauseReason}");
         }
-        foreach (var c in f.Canaries)
+        w.AppendLine(CultureInfo.InvariantCulture, $"  waiting for their files to settle: {f.Waiting.Count} sets");
+        foreach (string x in f.Waiting)
         {
-            string delivered = c.Unavailable is not null ? "canary unavailable: " + c.Unavailable
-                : c.LastDelivered is { } d ? $"canary delivered {Age(now - d)} ago" : "canary not yet delivered";
-            w.AppendLine(CultureInfo.InvariantCulture, $"  watcher {c.Root}: {delivered}{(c.Overdue ? " (OVERDUE)" : "")}, recreated {c.Failures} times");
+            w.AppendLine(CultureInfo.InvariantCulture, $"    {x}");
+        }
+        foreach (var c in f.Watchers)
+        {
+            string last = c.LastMissed is { } m ? $", last {Age(now - m)} ago ({c.LastMissedPath})" : "";
+            w.AppendLine(CultureInfo.InvariantCulture, $"  watcher {c.Root}: {c.MissedEvents} missed changes found by rescans{last}, recreated {c.Recreated} times");
         }
         if (f.RigDeviations > 0)
         {

@@ -76,14 +76,20 @@ internal sealed class RootTracker(int index, RootSession session)
         }
     }
 
-    /// <summary>Applies a full rescan: every set's file list is reconciled with what is on disk now.</summary>
-    public void Rescan(DateTime now)
+    /// <summary>
+    /// Applies a full rescan: every set's file list is reconciled with what is on disk now.
+    /// Returns the full paths of files the rescan found added or changed (the watcher should
+    /// have reported them).
+    /// </summary>
+    public List<string> Rescan(DateTime now)
     {
         var found = Session.Catalog.Discover().ToDictionary(s => s.SetId, StringComparer.Ordinal);
+        var changed = new List<string>();
         foreach (var id in _sets.Keys.Union(found.Keys).ToList())
         {
-            Reconcile(id, found.TryGetValue(id, out var s) ? s.Files : [], now);
+            Reconcile(id, found.TryGetValue(id, out var s) ? s.Files : [], now, changed);
         }
+        return changed;
     }
 
     /// <summary>Applies one hinted path. Returns false when the path needs a full rescan (a folder, or not classifiable).</summary>
@@ -138,7 +144,7 @@ internal sealed class RootTracker(int index, RootSession session)
         }
     }
 
-    private void Reconcile(string setId, IReadOnlyList<InputFile> files, DateTime now)
+    private void Reconcile(string setId, IReadOnlyList<InputFile> files, DateTime now, List<string> changed)
     {
         if (!_sets.TryGetValue(setId, out var set))
         {
@@ -156,17 +162,21 @@ internal sealed class RootTracker(int index, RootSession session)
         }
         foreach (var f in files)
         {
-            Upsert(set, f, now);
+            if (Upsert(set, f, now))
+            {
+                changed.Add(f.FullPath);
+            }
         }
     }
 
-    private void Upsert(TrackedSet set, InputFile file, DateTime now)
+    /// <summary>Records the file's size and time; true when that is a change.</summary>
+    private bool Upsert(TrackedSet set, InputFile file, DateTime now)
     {
         if (set.Files.TryGetValue(file.Key, out var tf))
         {
             if (tf.File.Size == file.Size && tf.File.MtimeTicks == file.MtimeTicks)
             {
-                return;
+                return false;
             }
             tf.File = file;
             tf.StableSinceUtc = now;
@@ -177,6 +187,7 @@ internal sealed class RootTracker(int index, RootSession session)
             set.Files[file.Key] = new TrackedFile(file, now);
             Changed(set, now, $"{file.Key} added");
         }
+        return true;
     }
 
     private void Changed(TrackedSet set, DateTime now, string what)

@@ -32,21 +32,26 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 var now = DateTime.UtcNow;
                 var opts = runtime.Options.Service;
                 ops?.Health.Beat(LoopName);
-                bool rescan = runtime.TakeRescanRequest();
+                var rescan = runtime.TakeRescanRequest();
                 while (runtime.Hints.Reader.TryRead(out var hint))
                 {
                     if (hint.Path is null || !trackers[hint.Root].ApplyHint(hint.Path, now))
                     {
-                        rescan = true;
+                        rescan = RescanKind.Requested;
                     }
                 }
-                if (rescan)
+                if (rescan != RescanKind.None)
                 {
                     foreach (var t in trackers)
                     {
-                        t.Rescan(now);
+                        var found = t.Rescan(now);
+                        if (rescan == RescanKind.Periodic)
+                        {
+                            found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
+                        }
                     }
                 }
+                RecreateSilentWatchers(trackers);
                 if (runtime.SettingsChanged)
                 {
                     runtime.SettingsChanged = false;
@@ -92,6 +97,7 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 if (ops is not null)
                 {
                     ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
+                    ops.PublishWaiting(WaitingSets(trackers, now, opts.StableSeconds));
                     if (round++ % 20 == 0)
                     {
                         ops.PublishStuck(StuckSets(trackers, now));
@@ -125,6 +131,19 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
 
     private const string LoopName = "scheduler";
 
+    /// <summary>Changes a periodic rescan found that the watcher never reported: that watcher went silent, recreate it.</summary>
+    private void RecreateSilentWatchers(List<RootTracker> trackers)
+    {
+        foreach (var (root, missed, example) in runtime.Ops?.Missed?.Due() ?? [])
+        {
+            LogMissed(log, trackers[root].Session.Catalog.RootPath, missed, example);
+            runtime.RestartWatcher?.Invoke(root);
+        }
+    }
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "The watcher of {Root} missed {Count} changes that a periodic rescan found (for example {Path}); recreating it")]
+    private static partial void LogMissed(ILogger logger, string root, int count, string path);
+
     /// <summary>Sets still waiting a minute past their profile's maximum wait (the completion rule should have released them).</summary>
     private static List<string> StuckSets(List<RootTracker> trackers, DateTime now)
     {
@@ -142,6 +161,27 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
             }
         }
         return stuck;
+    }
+
+    /// <summary>At most this many waiting sets are listed; the rest are counted.</summary>
+    private const int WaitingListed = 50;
+
+    /// <summary>Sets waiting for their files to settle or for their completion rule, with how many files are still settling.</summary>
+    internal static List<string> WaitingSets(IEnumerable<RootTracker> trackers, DateTime now, double stableSeconds)
+    {
+        var waiting = trackers.SelectMany(t => t.Sets.Values).Where(s => s.Phase == SetPhase.Waiting && s.Files.Count > 0)
+            .OrderBy(s => s.FirstSeenUtc).ThenBy(s => s.Id, StringComparer.Ordinal).ToList();
+        var list = waiting.Take(WaitingListed).Select(s =>
+        {
+            int settling = s.Files.Values.Count(f => (now - f.StableSinceUtc).TotalSeconds < stableSeconds);
+            string why = s.LastWhy.Length > 0 ? "; " + s.LastWhy : "";
+            return System.FormattableString.Invariant($"{s.Id}: {s.Files.Count} files, {settling} still within the {stableSeconds:0.#} s quiet period{why}");
+        }).ToList();
+        if (waiting.Count > WaitingListed)
+        {
+            list.Add(System.FormattableString.Invariant($"... and {waiting.Count - WaitingListed} more sets"));
+        }
+        return list;
     }
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Root {Root}: {Sets} sets found at start, {Done} already up to date")]

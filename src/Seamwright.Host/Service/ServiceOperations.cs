@@ -15,10 +15,10 @@ namespace Seamwright.Host.Service;
 /// <summary>
 /// What `watch` adds for unattended operation: supervised decoding (a worker pool shared by all
 /// roots, a quarantine ledger per output root) and the health and housekeeping loop (heartbeat,
-/// watchdog, canary, disk-space intake gate, figures, retention). Settings: the sections
+/// watchdog, missed-event detection, disk-space intake gate, figures, retention). Settings: the sections
 /// Seamwright:Supervision and Seamwright:Operations.
 /// </summary>
-internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl, IAsyncDisposable
+internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
 {
     public const string ScratchFolder = "worker-scratch";
     public const string LedgerFile = "decode-attempts.db";
@@ -54,10 +54,8 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
 
     public DiskSpaceGuard? Disk { get; private set; }
 
-    public CanaryProbe? Canary { get; private set; }
-
-    /// <summary>Set by the watcher loop: recreates the watcher of a root path.</summary>
-    public Action<string>? RestartWatcher { get; set; }
+    /// <summary>Changes found by periodic rescans that no watcher event reported (per root, by index).</summary>
+    public MissedEventDetector? Missed { get; private set; }
 
     /// <summary>Published by the scheduler each round.</summary>
     public int QueueDepth { get; set; }
@@ -67,6 +65,12 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
     public void PublishStuck(IReadOnlyList<string> stuck) => Volatile.Write(ref _stuck, stuck);
 
     public IReadOnlyList<string> StuckSets() => Volatile.Read(ref _stuck);
+
+    private IReadOnlyList<string> _waiting = [];
+
+    public void PublishWaiting(IReadOnlyList<string> waiting) => Volatile.Write(ref _waiting, waiting);
+
+    public IReadOnlyList<string> Waiting() => Volatile.Read(ref _waiting);
 
     public IReadOnlyList<string> Quarantined()
     {
@@ -115,10 +119,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
         {
             Disk = new DiskSpaceGuard(new DriveFreeSpaceProbe(), outputRoots, Options.PauseBelowFreeMegabytes << 20, Options.ResumeMarginMegabytes << 20);
         }
-        if (Options.CanarySeconds > 0)
-        {
-            Canary = new CanaryProbe(watchedRoots, this, Time, TimeSpan.FromSeconds(Options.CanarySeconds));
-        }
+        Missed = new MissedEventDetector(watchedRoots, Time, TimeSpan.FromSeconds(MissedEventDetector.DefaultGraceSeconds));
         var heartbeats = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, HeartbeatFile.FileName)).ToList();
         var caches = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, "features")).ToList();
         var runs = new LedgerRunRetention(roots);
@@ -129,11 +130,9 @@ internal sealed class ServiceOperations : IServiceFigureSource, IWatcherControl,
         services.AddSingleton(Time);
         services.AddSingleton(sp => new OperationsLoop(Options, Health, Metrics, this, Time,
             sp.GetRequiredService<ILoggerFactory>().CreateLogger<OperationsLoop>(), heartbeats,
-            SystemdNotifier.FromEnvironment(), Disk, Canary, Pool, retention));
+            SystemdNotifier.FromEnvironment(), Disk, Missed, Pool, retention));
         services.AddHostedService<OperationsService>();
     }
-
-    public void RestartAndRescan(string root) => RestartWatcher?.Invoke(root);
 
     public async ValueTask DisposeAsync()
     {

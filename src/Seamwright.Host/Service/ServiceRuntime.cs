@@ -8,6 +8,14 @@ namespace Seamwright.Host.Service;
 /// <summary>A change hint from a watcher: a path under a root, or a request to rescan the root.</summary>
 internal readonly record struct WatchHint(int Root, string? Path);
 
+/// <summary>Whether a rescan is due this round and why.</summary>
+internal enum RescanKind
+{
+    None,
+    Requested,
+    Periodic,
+}
+
 /// <summary>A complete set handed to the workers.</summary>
 internal sealed record SetJob(int Root, SetInputs Set, bool Incomplete);
 
@@ -22,6 +30,7 @@ internal sealed record SetJobResult(int Root, SetOutcome Outcome);
 internal sealed class ServiceRuntime
 {
     private int _rescanRequested;
+    private int _periodicRescanRequested;
 
     public ServiceRuntime(IReadOnlyList<RootSession> roots, SeamwrightOptions options)
     {
@@ -51,9 +60,13 @@ internal sealed class ServiceRuntime
     /// <summary>Set when the settings were reloaded; the scheduler re-checks every set's fingerprint.</summary>
     public volatile bool SettingsChanged;
 
+    /// <summary>Recreates the watcher of a root (set by the watcher loop).</summary>
+    public Action<int>? RestartWatcher { get; set; }
+
     /// <summary>O(1) hint from a watcher thread; when the channel is full the event is replaced by a full rescan.</summary>
     public void Hint(int root, string path)
     {
+        Ops?.Missed?.Reported(root, path);
         if (!Hints.Writer.TryWrite(new WatchHint(root, path)))
         {
             RequestRescan();
@@ -62,7 +75,16 @@ internal sealed class ServiceRuntime
 
     public void RequestRescan() => Interlocked.Exchange(ref _rescanRequested, 1);
 
-    public bool TakeRescanRequest() => Interlocked.Exchange(ref _rescanRequested, 0) == 1;
+    /// <summary>The timer's rescan: what it finds that no event reported shows a silent watcher.</summary>
+    public void RequestPeriodicRescan() => Interlocked.Exchange(ref _periodicRescanRequested, 1);
+
+    /// <summary>Takes both requests; a requested rescan (events, errors) wins over a periodic one in the same round.</summary>
+    public RescanKind TakeRescanRequest()
+    {
+        bool requested = Interlocked.Exchange(ref _rescanRequested, 0) == 1;
+        bool periodic = Interlocked.Exchange(ref _periodicRescanRequested, 0) == 1;
+        return requested ? RescanKind.Requested : periodic ? RescanKind.Periodic : RescanKind.None;
+    }
 
     public void SetFatal(Exception e)
     {

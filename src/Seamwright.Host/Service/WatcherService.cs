@@ -7,7 +7,9 @@ namespace Seamwright.Host.Service;
 /// Watches every root with a FileSystemWatcher whose events are only hints (pushed O(1) into a
 /// bounded channel). On a watcher error the watcher is recreated and a full rescan requested;
 /// full rescans are also requested periodically, because events can be lost (buffer overflow,
-/// network shares, a stopped inotify thread: see RELIABILITY.md).
+/// network shares, a stopped inotify thread: see RELIABILITY.md); changes such a rescan finds
+/// that no event reported make the scheduler recreate that watcher (MissedEventDetector).
+/// Nothing is ever written into a watched root.
 /// </summary>
 internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplicationLifetime lifetime, ILogger<WatcherService> log) : BackgroundService
 {
@@ -23,16 +25,13 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
                 Create(i);
             }
             var period = TimeSpan.FromSeconds(runtime.Options.Service.RescanSeconds);
-            if (runtime.Ops is { } ops)
-            {
-                ops.RestartWatcher = RestartFromCanary;
-                ops.Health.Register(LoopName, period * 3);
-            }
+            runtime.RestartWatcher = Create;
+            runtime.Ops?.Health.Register(LoopName, period * 3);
             while (!stoppingToken.IsCancellationRequested)
             {
                 runtime.Ops?.Health.Beat(LoopName);
                 await Task.Delay(period, stoppingToken).ConfigureAwait(false);
-                runtime.RequestRescan();
+                runtime.RequestPeriodicRescan();
             }
         }
         catch (OperationCanceledException) when (stoppingToken.IsCancellationRequested)
@@ -66,13 +65,14 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
             NotifyFilter = NotifyFilters.FileName | NotifyFilters.DirectoryName | NotifyFilters.Size | NotifyFilters.LastWrite,
             InternalBufferSize = 64 * 1024,
         };
-        w.Created += (_, e) => Hint(root, path, e.FullPath);
-        w.Changed += (_, e) => Hint(root, path, e.FullPath);
-        w.Deleted += (_, e) => runtime.Hint(root, e.FullPath);
+        bool deaf = WatcherTestHooks.TakeDeafWatcher();
+        w.Created += (_, e) => Hint(root, e.FullPath, deaf);
+        w.Changed += (_, e) => Hint(root, e.FullPath, deaf);
+        w.Deleted += (_, e) => Hint(root, e.FullPath, deaf);
         w.Renamed += (_, e) =>
         {
-            runtime.Hint(root, e.OldFullPath);
-            runtime.Hint(root, e.FullPath);
+            Hint(root, e.OldFullPath, deaf);
+            Hint(root, e.FullPath, deaf);
         };
         w.Error += (_, e) => OnError(root, e.GetException());
         w.EnableRaisingEvents = true;
@@ -89,27 +89,12 @@ internal sealed partial class WatcherService(ServiceRuntime runtime, IHostApplic
 
     private const string LoopName = "watcher";
 
-    /// <summary>Events for the canary prove the watcher alive and are not inputs; everything else is a hint.</summary>
-    private void Hint(int root, string rootPath, string path)
+    /// <summary>Every event is a hint; a watcher made deaf by the test hook drops them (a silent watcher).</summary>
+    private void Hint(int root, string path, bool deaf)
     {
-        if (Operations.CanaryProbe.IsCanary(path))
+        if (!deaf)
         {
-            runtime.Ops?.Canary?.Observed(rootPath, path);
-            return;
-        }
-        runtime.Hint(root, path);
-    }
-
-    /// <summary>The canary went unanswered: recreate that root's watcher and rescan.</summary>
-    private void RestartFromCanary(string rootPath)
-    {
-        for (int i = 0; i < runtime.Roots.Count; i++)
-        {
-            if (string.Equals(Path.GetFullPath(runtime.Roots[i].Catalog.RootPath), rootPath, StringComparison.Ordinal))
-            {
-                Create(i);
-                runtime.RequestRescan();
-            }
+            runtime.Hint(root, path);
         }
     }
 

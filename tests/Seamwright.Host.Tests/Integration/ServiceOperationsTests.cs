@@ -59,7 +59,7 @@ public class ServiceOperationsTests(ITestOutputHelper output)
         Assert.Contains(figures.Quarantined, q => q.Contains("bigtiff.tif", StringComparison.Ordinal));
         Assert.Equal(4, figures.WorkerKills);
         Assert.True(figures.PeakWorkerMegabytes <= 512);
-        Assert.Contains("service: healthy", status, StringComparison.Ordinal);
+        Assert.Contains("service: running, healthy", status, StringComparison.Ordinal);
         Assert.Contains("quarantined files: 2", status, StringComparison.Ordinal);
         Assert.Contains("crashes.png: 2 failed decode attempts, last: worker crashed (signal 6)", status, StringComparison.Ordinal);
         Assert.Contains("test fault: crash on crashes.png", status, StringComparison.Ordinal);

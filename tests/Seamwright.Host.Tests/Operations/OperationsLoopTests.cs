@@ -21,6 +21,8 @@ public sealed class OperationsLoopTests : IDisposable
         public IReadOnlyList<string> StuckSets() => ["roots/a/set-7: waiting 00:12:00, maximum 00:10:00"];
 
         public IReadOnlyList<string> Quarantined() => ["/in/bad.tif: 3 failed decode attempts"];
+
+        public IReadOnlyList<string> Waiting() => ["scans/b: 3 files, 1 still within the 10 s quiet period"];
     }
 
     private sealed class ScriptedProbe : IFreeSpaceProbe
@@ -63,15 +65,20 @@ public sealed class OperationsLoopTests : IDisposable
         Assert.Empty(Drain(systemd));
         var onDisk = HeartbeatFile.TryRead(heartbeat)!;
         Assert.Equal(first.At, onDisk.At); // not rewritten while unhealthy
-        string text = StatusReport.Render(onDisk, _clock.GetUtcNow(), staleAfter: TimeSpan.FromSeconds(30));
+        var (state, note) = ServiceState.Judge(onDisk, _clock.GetUtcNow(), staleAfter: TimeSpan.FromSeconds(30), _ => true);
+        Assert.Equal(ServiceState.NotResponding, state);
+        Assert.Equal(ExitCodes.ServiceUnhealthy, ServiceState.ExitCode(state, onDisk.Healthy));
+        string text = StatusReport.Render(state, note, onDisk, _clock.GetUtcNow());
         Assert.Contains("NOT RESPONDING (heartbeat 31 s old", text, StringComparison.Ordinal);
         Assert.Contains("queue depth: 4 sets", text, StringComparison.Ordinal);
         Assert.Contains("median 6.0 s, 95th percentile 7.8 s", text, StringComparison.Ordinal);
         Assert.Contains("2 accepted (50.0%), 1 weak (25.0%), 1 rejected (25.0%)", text, StringComparison.Ordinal);
         Assert.Contains("stuck sets: 1", text, StringComparison.Ordinal);
         Assert.Contains("/in/bad.tif: 3 failed decode attempts", text, StringComparison.Ordinal);
-        string live = StatusReport.Render(stalled, _clock.GetUtcNow(), TimeSpan.FromSeconds(30));
-        Assert.Contains("service: UNHEALTHY", live, StringComparison.Ordinal);
+        Assert.Contains("waiting for their files to settle: 1 sets", text, StringComparison.Ordinal);
+        Assert.Contains("scans/b: 3 files, 1 still within the 10 s quiet period", text, StringComparison.Ordinal);
+        string live = StatusReport.Render(ServiceState.Running, null, stalled, _clock.GetUtcNow());
+        Assert.Contains("service: running, UNHEALTHY", live, StringComparison.Ordinal);
         Assert.Contains("problem: scheduler silent for 31 s", live, StringComparison.Ordinal);
 
         // The loop beats again: healthy, heartbeat and watchdog resume.
@@ -98,7 +105,7 @@ public sealed class OperationsLoopTests : IDisposable
         Assert.True(paused.IntakePaused);
         Assert.Contains("intake paused: 700 MiB free", paused.PauseReason, StringComparison.Ordinal);
         Assert.Contains("below the 1024 MiB threshold", paused.PauseReason, StringComparison.Ordinal);
-        Assert.Contains("INTAKE PAUSED", StatusReport.Render(paused, _clock.GetUtcNow(), TimeSpan.FromMinutes(1)), StringComparison.Ordinal);
+        Assert.Contains("INTAKE PAUSED", StatusReport.Render(ServiceState.Running, null, paused, _clock.GetUtcNow()), StringComparison.Ordinal);
         var waiting = disk.WaitUntilOpenAsync(CancellationToken.None);
 
         probe.Free = 1200L << 20; // above the threshold but inside the margin: stays paused
@@ -108,6 +115,38 @@ public sealed class OperationsLoopTests : IDisposable
         probe.Free = 2L << 30;
         Assert.False(loop.Tick().IntakePaused);
         await waiting; // intake resumes
+    }
+
+    [Fact]
+    public void WriteStopped_AfterBeats_HeartbeatSaysStoppedNotHealthyAndStatusSaysStopped()
+    {
+        string heartbeat = Path.Combine(_folder, HeartbeatFile.FileName);
+        var loop = new OperationsLoop(new OperationsOptions(), new HealthMonitor(_clock), new OperationsMetrics(), new FixedFigures(),
+            _clock, NullLogger.Instance, [heartbeat]);
+        Assert.True(loop.Tick().Healthy);
+        Assert.Equal(ServiceState.Running, ServiceState.Judge(HeartbeatFile.TryRead(heartbeat), _clock.GetUtcNow(), TimeSpan.FromSeconds(30), _ => true).State);
+
+        loop.WriteStopped();
+        _clock.Advance(TimeSpan.FromSeconds(31)); // a stop is still a stop after three beats, not a hang
+        var onDisk = HeartbeatFile.TryRead(heartbeat)!;
+        Assert.False(onDisk.Healthy);
+        Assert.Equal("stopped", onDisk.State);
+        var (state, _) = ServiceState.Judge(onDisk, _clock.GetUtcNow(), TimeSpan.FromSeconds(30), _ => true);
+        Assert.Equal(ServiceState.Stopped, state);
+        Assert.Equal(ExitCodes.ServiceNotRunning, ServiceState.ExitCode(state, onDisk.Healthy));
+    }
+
+    [Fact]
+    public void Judge_StaleHeartbeatProcessGone_StoppedNotHungNoFileNotStarted()
+    {
+        var f = new OperationsFigures { At = _clock.GetUtcNow(), ProcessId = 1, Healthy = true };
+        Assert.Equal(ServiceState.Stopped, ServiceState.Judge(f, _clock.GetUtcNow().AddMinutes(5), TimeSpan.FromSeconds(30), _ => false).State);
+        Assert.Equal(ServiceState.NotResponding, ServiceState.Judge(f, _clock.GetUtcNow().AddMinutes(5), TimeSpan.FromSeconds(30), _ => null).State);
+        Assert.Equal(ServiceState.Running, ServiceState.Judge(f, _clock.GetUtcNow().AddSeconds(5), TimeSpan.FromSeconds(30), _ => false).State);
+        Assert.Equal(ServiceState.NotStarted, ServiceState.Judge(null, _clock.GetUtcNow(), TimeSpan.FromSeconds(30), _ => true).State);
+        Assert.Equal(ExitCodes.Ok, ServiceState.ExitCode(ServiceState.Running, healthy: true));
+        Assert.Equal(ExitCodes.ServiceUnhealthy, ServiceState.ExitCode(ServiceState.Running, healthy: false));
+        Assert.Equal(ExitCodes.ServiceNotRunning, ServiceState.ExitCode(ServiceState.NotStarted, healthy: false));
     }
 
     [Fact]

@@ -89,7 +89,7 @@ public class SmallPartsTests
     {
         Assert.Empty(new OperationsOptions().Validate());
         Assert.Empty(new Seamwright.Host.Supervision.SupervisionOptions().Validate());
-        Assert.Contains("Operations:CanarySeconds must be 0 (off) or 5..3600", new OperationsOptions { CanarySeconds = 2 }.Validate());
+        Assert.Contains("Operations:HeartbeatSeconds must be 1..300", new OperationsOptions { HeartbeatSeconds = 0.5 }.Validate());
         Assert.Contains("Supervision:Workers must be 1..32", new Seamwright.Host.Supervision.SupervisionOptions { Workers = 0 }.Validate());
     }
 }
