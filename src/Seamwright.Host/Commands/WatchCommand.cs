@@ -44,6 +44,10 @@ internal static class WatchCommand
             {
                 return RunCommand.Bad("no root to watch: configure Seamwright:Roots or give ROOT: seamwright " + Usage);
             }
+            if (options.Roots.FirstOrDefault(r => !Directory.Exists(r.Path)) is { } missing)
+            {
+                return RunCommand.Bad($"the folder to watch does not exist: {Path.GetFullPath(missing.Path)}");
+            }
         }
         catch (SettingsException e)
         {
@@ -76,8 +80,12 @@ internal static class WatchCommand
             : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
                 .WriteTo.Console().CreateLogger();
         builder.Services.AddSerilog(Log.Logger, dispose: false);
+        string settingsFile = Path.GetFullPath(a.Value("--config") ?? SettingsLoader.DefaultConfigFile);
+        Log.Information("Settings file {File} ({State}); environment variables and command-line overrides win over it",
+            settingsFile, File.Exists(settingsFile) ? "read" : "absent: built-in defaults");
 
         var sessions = new List<RootSession>();
+        bool started = false;
         ServiceOperations ops;
         try
         {
@@ -119,6 +127,7 @@ internal static class WatchCommand
             using var host = builder.Build();
             var loops = HostExit.LoopsOf(host);
             var operations = host.Services.GetService<OperationsLoop>(); // resolved now: Run disposes the host's services
+            host.Services.GetRequiredService<IHostApplicationLifetime>().ApplicationStarted.Register(() => started = true);
             using var reload = ChangeToken.OnChange(((IConfiguration)builder.Configuration).GetReloadToken, () => Reload(builder.Configuration, a, runtime));
             host.Run();
             if (HostExit.CodeFor(loops, runtime.Fatal) != ExitCodes.Ok)
@@ -135,9 +144,18 @@ internal static class WatchCommand
             System.Console.Error.WriteLine("seamwright: invalid settings: " + string.Join("; ", e.Failures));
             return ExitCodes.BadArguments;
         }
+        catch (Exception e) when (!started && e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
+        {
+            // A start-up error (lock held, missing folder, port in use, output not writable): one
+            // line, exit 2, so a service manager does not restart into the same error.
+            Log.Fatal("Cannot start: {Message}", e.Message);
+            Log.CloseAndFlush();
+            System.Console.Error.WriteLine("seamwright: cannot start: " + e.Message);
+            return ExitCodes.BadArguments;
+        }
         catch (Exception e) when (e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
         {
-            Log.Fatal(e, "Cannot start: {Message}", e.Message);
+            Log.Fatal(e, "Stopped by a fatal error: {Message}", e.Message);
             System.Console.Error.WriteLine("seamwright: " + e.Message);
             return ExitCodes.Fatal;
         }

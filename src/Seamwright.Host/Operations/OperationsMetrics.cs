@@ -18,8 +18,15 @@ internal sealed class OperationsMetrics(int latencyWindow = 500)
     private long _rigDeviations;
     private string? _driftWarning;
 
+    /// <summary>The instruments fed alongside these counters (null outside the service).</summary>
+    public ServiceMeters? Meters { get; set; }
+
+    /// <summary>A set run ended with this outcome (done, failed, changed, ...).</summary>
+    public void RecordSet(string outcome) => Meters?.RecordSet(outcome);
+
     public void RecordPair(PairStatus status)
     {
+        Meters?.RecordPair(status);
         lock (_gate)
         {
             switch (status)
@@ -42,9 +49,11 @@ internal sealed class OperationsMetrics(int latencyWindow = 500)
     /// <summary>A set's outputs were completed (manifest written); <paramref name="arrival"/> is when its last file arrived.</summary>
     public void RecordSetOutput(DateTimeOffset arrival, DateTimeOffset output)
     {
+        double seconds = Math.Max(0, (output - arrival).TotalSeconds);
+        Meters?.RecordLatency(seconds);
         lock (_gate)
         {
-            _latencies.Enqueue(Math.Max(0, (output - arrival).TotalSeconds));
+            _latencies.Enqueue(seconds);
             if (_latencies.Count > latencyWindow)
             {
                 _latencies.Dequeue();

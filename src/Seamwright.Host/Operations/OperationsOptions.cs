@@ -12,6 +12,12 @@ internal sealed record OperationsOptions
     /// <summary>Seconds between the structured figures log lines (10..86400). Default 300.</summary>
     public double FiguresLogSeconds { get; init; } = 300;
 
+    /// <summary>
+    /// Address and port of the monitoring endpoint (GET /metrics, GET /health), for example
+    /// <c>127.0.0.1:9464</c>; empty (the default) keeps it off.
+    /// </summary>
+    public string HttpListen { get; init; } = "";
+
     /// <summary>Intake pauses when an output volume has less free space than this, MiB (0 = never). Default 1024.</summary>
     public long PauseBelowFreeMegabytes { get; init; } = 1024;
 
@@ -38,6 +44,10 @@ internal sealed record OperationsOptions
         var problems = new List<string>();
         Check(HeartbeatSeconds is >= 1 and <= 300, "Operations:HeartbeatSeconds must be 1..300");
         Check(FiguresLogSeconds is >= 10 and <= 86400, "Operations:FiguresLogSeconds must be 10..86400");
+        if (HttpListen.Length > 0 && HttpEndpoint.Parse(HttpListen, out string? listenProblem) is null)
+        {
+            problems.Add("Operations:HttpListen " + listenProblem + "; empty turns the endpoint off");
+        }
         Check(PauseBelowFreeMegabytes >= 0, "Operations:PauseBelowFreeMegabytes must be 0 or more");
         Check(ResumeMarginMegabytes >= 0, "Operations:ResumeMarginMegabytes must be 0 or more");
         Check(LogRetentionDays >= 0 && ConfidenceLogRetentionDays >= 0 && FeatureCacheRetentionDays >= 0,

@@ -29,6 +29,7 @@ internal sealed class ServiceObserver(ILogger log, Operations.OperationsMetrics?
     public void SetFinished(SetOutcome outcome)
     {
         ArgumentNullException.ThrowIfNull(outcome);
+        metrics?.RecordSet(outcome.Kind.ToString().ToLowerInvariant());
         if (outcome.Kind == SetOutcomeKind.Done)
         {
             log.Information("Set {Set}: {Outcome} [run {Run}, images {Images}, pairs {Pairs}, accepted {Accepted}, weak {Weak}, rejected {Rejected}, bad {BadFiles}]",

@@ -54,6 +54,12 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
 
     public DiskSpaceGuard? Disk { get; private set; }
 
+    /// <summary>The health loop once the host built it (its last figures feed the gauges and /health).</summary>
+    public OperationsLoop? Loop { get; private set; }
+
+    /// <summary>The service's System.Diagnostics.Metrics instruments (exported by the HTTP endpoint when on).</summary>
+    public ServiceMeters? Meters { get; private set; }
+
     /// <summary>Changes found by periodic rescans that no watcher event reported (per root, by index).</summary>
     public MissedEventDetector? Missed { get; private set; }
 
@@ -128,10 +134,31 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         services.AddSingleton(Health);
         services.AddSingleton(Options);
         services.AddSingleton(Time);
-        services.AddSingleton(sp => new OperationsLoop(Options, Health, Metrics, this, Time,
+        services.AddSingleton(sp => Loop = new OperationsLoop(Options, Health, Metrics, this, Time,
             sp.GetRequiredService<ILoggerFactory>().CreateLogger<OperationsLoop>(), heartbeats,
             SystemdNotifier.FromEnvironment(), Disk, Missed, Pool, retention));
         services.AddHostedService<OperationsService>();
+        AddMeters(services, outputRoots);
+    }
+
+    /// <summary>The instruments, and the HTTP endpoint exporting them when Operations:HttpListen is set.</summary>
+    private void AddMeters(IServiceCollection services, IReadOnlyList<string> outputRoots)
+    {
+        var probe = new DriveFreeSpaceProbe();
+        Meters = new ServiceMeters(new ServiceGaugeSource
+        {
+            QueueDepth = () => QueueDepth,
+            Last = () => Loop?.Last,
+            WorkerKills = () => Pool?.Counters.Kills ?? 0,
+            FreeDisk = () => outputRoots.Select(o => (o, probe.FreeBytes(o))),
+            MissedChanges = () => Missed?.States().Select(s => (s.Root, s.MissedEvents)) ?? [],
+        });
+        Metrics.Meters = Meters;
+        if (HttpEndpoint.Parse(Options.HttpListen, out _) is { } listen)
+        {
+            HttpEndpoint.ConfigureExport();
+            services.AddHostedService(sp => new HttpEndpoint(listen, Health, () => Loop?.Last, sp.GetRequiredService<ILogger<HttpEndpoint>>()));
+        }
     }
 
     public async ValueTask DisposeAsync()
@@ -140,6 +167,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         {
             await Pool.DisposeAsync();
         }
+        Meters?.Dispose();
         lock (_ledgers)
         {
             _ledgers.ForEach(l => l.Dispose());

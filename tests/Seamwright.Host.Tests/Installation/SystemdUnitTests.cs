@@ -70,6 +70,31 @@ public class SystemdUnitTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void Unit_SettingsItCites_ExistInTheShippedSettingsAndLogsLandInItsFolders()
+    {
+        string unit = File.ReadAllText(Path.Combine(RepoPaths.Root, "config", "seamwright.service"));
+        using var settings = System.Text.Json.JsonDocument.Parse(File.ReadAllText(Path.Combine(RepoPaths.Root, "config", "appsettings.json")));
+        var cited = System.Text.RegularExpressions.Regex.Matches(unit, @"\b(?:Seamwright|Host|Serilog):[A-Za-z:]+").Select(m => m.Value).Distinct().ToList();
+        Assert.NotEmpty(cited);
+        foreach (string key in cited)
+        {
+            var node = settings.RootElement;
+            foreach (string part in key.Split(':'))
+            {
+                Assert.True(node.ValueKind == System.Text.Json.JsonValueKind.Object && node.TryGetProperty(part, out node), $"the unit cites {key}, which config/appsettings.json does not have");
+            }
+        }
+        var service = ReadSection("Service");
+        // The shipped log path is relative, so logs land under WorkingDirectory; a LogsDirectory= the logs never reach misleads.
+        string logPath = settings.RootElement.GetProperty("Serilog").GetProperty("WriteTo").EnumerateArray()
+            .First(s => s.GetProperty("Name").GetString() == "File").GetProperty("Args").GetProperty("path").GetString()!;
+        Assert.False(Path.IsPathRooted(logPath));
+        Assert.False(service.ContainsKey("LogsDirectory"), "LogsDirectory= names a folder the logs never reach");
+        Assert.Equal("/var/lib/" + service["StateDirectory"], service["WorkingDirectory"]);
+        Assert.Equal("2", service["RestartPreventExitStatus"]);
+    }
+
+    [Fact]
     public void Sysusers_DedicatedUser_MatchesUnitUser()
     {
         string user = ReadSection("Service")["User"];

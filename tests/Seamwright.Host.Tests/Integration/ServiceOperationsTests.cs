@@ -73,7 +73,7 @@ public class ServiceOperationsTests(ITestOutputHelper output)
             Assert.False(string.IsNullOrWhiteSpace(record.Reason));
         }
         Assert.All(inputsBefore, kv => Assert.Equal(kv.Value, File.ReadAllBytes(kv.Key)));
-        Assert.DoesNotContain(System.Diagnostics.Process.GetProcesses(), p => IsOurWorker(p));
+        Assert.DoesNotContain(System.Diagnostics.Process.GetProcesses(), p => IsOurWorker(p, dir.Path));
     }
 
     [Fact]
@@ -103,15 +103,25 @@ public class ServiceOperationsTests(ITestOutputHelper output)
     }
 
     [Fact]
-    public void Watch_OutputRootIsAFile_ExitsNonZero()
+    public void Watch_StartupErrors_OneLineExitTwoNoStackTrace()
     {
         using var dir = new ScratchFolder();
         Directory.CreateDirectory(dir.Sub("in"));
         File.WriteAllText(dir.Sub("out"), "a file where the output folder should be");
-        var (code, _, errors) = SeamwrightProcess.Run(dir.Path, TimeSpan.FromMinutes(1),
+        var (fileCode, fileOut, fileErr) = SeamwrightProcess.Run(dir.Path, TimeSpan.FromMinutes(1),
             ["watch", dir.Sub("in"), "--output", dir.Sub("out"), .. SeamwrightProcess.FastSettings]);
-        Assert.Equal(ExitCodes.Fatal, code);
-        Assert.False(string.IsNullOrWhiteSpace(errors));
+        var (missingCode, missingOut, missingErr) = SeamwrightProcess.Run(dir.Path, TimeSpan.FromMinutes(1),
+            ["watch", dir.Sub("nowhere"), "--output", dir.Sub("out2"), .. SeamwrightProcess.FastSettings]);
+
+        Assert.Equal(ExitCodes.BadArguments, fileCode);
+        Assert.Equal(ExitCodes.BadArguments, missingCode);
+        Assert.Single(fileErr.Trim().Split('\n'));
+        Assert.Equal("seamwright: the folder to watch does not exist: " + dir.Sub("nowhere"), missingErr.Trim());
+        foreach (string text in new[] { fileOut + fileErr, missingOut + missingErr })
+        {
+            Assert.DoesNotContain("   at ", text, StringComparison.Ordinal); // no stack trace
+            Assert.DoesNotContain(".cs:line", text, StringComparison.Ordinal);
+        }
     }
 
     [Fact]
@@ -125,15 +135,20 @@ public class ServiceOperationsTests(ITestOutputHelper output)
         Assert.Contains("Supervision:Workers must be 1..32", stdout + errors, StringComparison.Ordinal);
     }
 
-    /// <summary>A worker started with this test's cap (512 MiB) still running after the service stopped.</summary>
-    private static bool IsOurWorker(System.Diagnostics.Process p)
+    /// <summary>
+    /// A worker started with this test's cap (512 MiB) in this test's folder (its working
+    /// directory, inherited from the service) still running after the service stopped; workers
+    /// of the same test run by someone else on the machine do not count.
+    /// </summary>
+    private static bool IsOurWorker(System.Diagnostics.Process p, string folder)
     {
         try
         {
             return p.ProcessName is "seamwright" or "dotnet" && File.Exists($"/proc/{p.Id}/cmdline")
-                && File.ReadAllText($"/proc/{p.Id}/cmdline").Contains("worker\0--memory-mb\0512", StringComparison.Ordinal);
+                && File.ReadAllText($"/proc/{p.Id}/cmdline").Contains("worker\0--memory-mb\0512", StringComparison.Ordinal)
+                && new DirectoryInfo($"/proc/{p.Id}/cwd").LinkTarget is { } cwd && Path.GetFullPath(cwd) == Path.GetFullPath(folder);
         }
-        catch (IOException)
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
             return false;
         }
