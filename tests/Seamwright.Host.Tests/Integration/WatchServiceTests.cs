@@ -155,11 +155,11 @@ public class WatchServiceTests
     }
 
     [Fact]
-    public void Watch_RootMissing_ExitsNonZero()
+    public void Watch_RootMissing_ExitsTwoAsAStartUpError()
     {
         using var dir = new ScratchFolder();
         var (code, _, stderr) = SeamwrightProcess.Run(dir.Path, Limit, ["watch", dir.Sub("absent"), "--output", dir.Sub("out"), "--Seamwright:Engine=checksum"]);
-        Assert.Equal(1, code);
+        Assert.Equal(ExitCodes.BadArguments, code); // a start-up error, not fatal: a restart would not help
         Assert.Contains("does not exist", stderr, StringComparison.Ordinal);
     }
 }
