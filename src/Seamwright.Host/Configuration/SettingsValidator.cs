@@ -24,6 +24,7 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
         Range(e, $"{S}:Service:MaxParallelSets", o.Service.MaxParallelSets, 1, 64, "sets");
         Range(e, $"{S}:Service:MaxParallelJobs", o.Service.MaxParallelJobs, 1, 256, "jobs");
         Range(e, $"{S}:Service:MemoryBudgetMegabytes", o.Service.MemoryBudgetMegabytes, 16, 1048576, "MB");
+        Range(e, $"{S}:Service:FeatureMemoryMegabytes", o.Service.FeatureMemoryMegabytes, 1, 1048576, "MB");
         Range(e, $"{S}:Service:QueueCapacity", o.Service.QueueCapacity, 16, 1000000, "entries");
         Range(e, $"{S}:Service:ShutdownSeconds", o.Service.ShutdownSeconds, 1, 600, "seconds");
         Range(e, $"{S}:Limits:MaxFileMegabytes", o.Limits.MaxFileMegabytes, 0.001, 1048576, "MB");

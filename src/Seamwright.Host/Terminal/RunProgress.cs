@@ -91,6 +91,9 @@ internal sealed class RunProgress(ILogger log, bool interactive) : IProcessingOb
         Step(setId);
     }
 
+    public void PairsCounted(string setId, int estimated, int reused) =>
+        log.Information("Set {Set}: {Estimated} pairs estimated, {Reused} reused from the pair cache", setId, estimated, reused);
+
     public void SetFinished(SetOutcome outcome)
     {
         ArgumentNullException.ThrowIfNull(outcome);

@@ -18,6 +18,12 @@ public sealed class ImageAnalysis
     public DateTimeOffset? CaptureTime { get; init; }
 
     public required object Payload { get; init; }
+
+    /// <summary>The same analysis without the engine's payload: what a set keeps of every image while its pairs read features on demand.</summary>
+    public ImageAnalysis WithoutPayload() => new() { Size = Size, Coarse = Coarse, CaptureTime = CaptureTime, Payload = NotHeld };
+
+    /// <summary>The payload of an analysis whose features are not held in memory.</summary>
+    public static readonly object NotHeld = new();
 }
 
 /// <summary>An image the engine refused, with a reason in words (recorded, never fatal).</summary>

@@ -12,17 +12,24 @@ public sealed class FeatureCache(string outputRoot, IPairEngine engine)
 {
     private readonly string _folder = Path.Combine(outputRoot, State.StateStore.StateFolder, "features");
 
-    public bool TryGet(string hash, string featureFingerprint, out ImageAnalysis analysis)
+    public bool TryGet(string hash, string featureFingerprint, out ImageAnalysis analysis) =>
+        TryGet(hash, featureFingerprint, out analysis, out _);
+
+    /// <summary>As <see cref="TryGet(string, string, out ImageAnalysis)"/>, also giving the entry's length in bytes.</summary>
+    public bool TryGet(string hash, string featureFingerprint, out ImageAnalysis analysis, out long bytes)
     {
         string path = PathOf(hash, featureFingerprint);
         analysis = null!;
+        bytes = 0;
         if (!File.Exists(path))
         {
             return false;
         }
         try
         {
-            analysis = engine.Decode(File.ReadAllBytes(path));
+            byte[] data = File.ReadAllBytes(path);
+            analysis = engine.Decode(data);
+            bytes = data.Length;
             return true;
         }
         catch (Exception e) when (e is InvalidDataException or IOException or ArgumentException or IndexOutOfRangeException)

@@ -15,6 +15,9 @@ public interface IProcessingObserver
 
     void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons);
 
+    /// <summary>After the pairs: how many were estimated and how many came from the pair-result cache.</summary>
+    void PairsCounted(string setId, int estimated, int reused) { }
+
     void SetFinished(SetOutcome outcome);
 }
 

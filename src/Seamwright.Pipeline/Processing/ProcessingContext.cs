@@ -15,6 +15,9 @@ public sealed class ProcessingContext
     public required ConfidenceLog Log { get; init; }
     public required IPairEngine Engine { get; init; }
     public required FeatureCache Cache { get; init; }
+    /// <summary>Each pair's outcome, keyed by both images and the pair fingerprint (see <see cref="PairResultCache"/>).</summary>
+    public PairResultCache Pairs => _pairs ??= new PairResultCache(OutputRoot);
+    private PairResultCache? _pairs;
     /// <summary>Shared by every decode of the process.</summary>
     public required MemoryBudget Budget { get; init; }
     /// <summary>Bounds image and pair jobs across all sets of the process.</summary>

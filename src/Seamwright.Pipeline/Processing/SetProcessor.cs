@@ -127,15 +127,17 @@ public sealed class SetProcessor(ProcessingContext ctx)
         {
             if (ctx.Cache.TryGet(r.Hash!, featureFp, out var cached))
             {
-                r.Analysis = cached;
+                r.Analysis = cached.WithoutPayload();
             }
             else
             {
                 try
                 {
-                    r.Analysis = ctx.Engine.Analyze(r.File.FullPath, profile.Features, ctx.Options.Limits, ctx.Budget, cancel);
+                    var analysis = ctx.Engine.Analyze(r.File.FullPath, profile.Features, ctx.Options.Limits, ctx.Budget, cancel);
                     r.Decoded = true;
-                    ctx.Cache.Put(r.Hash!, featureFp, r.Analysis);
+                    // Features live in the cache from here on; the pairs read them back within a bounded memory (PairRunner).
+                    ctx.Cache.Put(r.Hash!, featureFp, analysis);
+                    r.Analysis = analysis.WithoutPayload();
                 }
                 catch (ImageRejectedException e)
                 {
@@ -182,29 +184,10 @@ public sealed class SetProcessor(ProcessingContext ctx)
         var good = images.Where(i => i.Analysis is not null).ToList();
         var plan = PairPlanner.Plan(profile.Pairing, good.Select(g => new PlanImage(g.File.Key, g.Analysis!.CaptureTime, g.Analysis.Coarse)).ToList());
         ctx.Observer.PairsPlanned(set.SetId, plan.Pairs.Count);
-        var pairResults = new PairResult[plan.Pairs.Count];
         var review = profile.Pairing.Mode == Settings.PairingMode.Frames ? ctx.Review : null;
-        Parallel.For(0, plan.Pairs.Count, new ParallelOptions { MaxDegreeOfParallelism = ctx.Options.Service.MaxParallelJobs, CancellationToken = cancel }, k =>
-        {
-            var (a, b) = (plan.Pairs[k].A, plan.Pairs[k].B);
-            ctx.JobSlots.Wait(cancel);
-            try
-            {
-                var sw = Stopwatch.StartNew();
-                ulong seed = PairSeed.Derive(profile.Estimation.Seed, good[a].File.Key, good[b].File.Key);
-                var pa = ctx.Engine.EstimatePair(good[a].Analysis!, good[b].Analysis!, profile.Estimation, seed);
-                pairResults[k] = new PairResult(a, b, pa, sw.Elapsed.TotalMilliseconds);
-                if (review is null)
-                {
-                    ctx.Observer.PairDone(set.SetId, good[a].File.Key, good[b].File.Key, pa.Estimate.Status, pa.Estimate.Reasons);
-                }
-            }
-            finally
-            {
-                ctx.JobSlots.Release();
-            }
-        });
-        cancel.ThrowIfCancellationRequested();
+        var pairImages = good.Select(g => new PairImage(g.File.Key, g.Hash!, g.File.FullPath)).ToList();
+        var pairResults = PairRunner.Run(ctx, set.SetId, profile, pairImages, plan.Pairs, reportEach: review is null, cancel)
+            .Select(r => new PairResult(r.A, r.B, r.Analysis, r.PairMs)).ToArray();
         if (review is not null)
         {
             ReviewPairs(review, set, profile, good, pairResults);

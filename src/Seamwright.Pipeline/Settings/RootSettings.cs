@@ -50,6 +50,8 @@ public sealed class ServiceSettings
     public int MaxParallelJobs { get; set; } = 2;
     /// <summary>Megabytes of decoded pixels allowed at once across all decodes.</summary>
     public int MemoryBudgetMegabytes { get; set; } = 1024;
+    /// <summary>Megabytes of image features held in memory per set while its pairs are estimated (least recently used dropped; the rest is read from the feature cache).</summary>
+    public int FeatureMemoryMegabytes { get; set; } = 256;
     /// <summary>Capacity of the bounded channels between the service loops.</summary>
     public int QueueCapacity { get; set; } = 4096;
     /// <summary>Seconds the host waits for work to stop at shutdown (keep below the service manager's limit).</summary>

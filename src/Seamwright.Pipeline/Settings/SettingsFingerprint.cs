@@ -47,6 +47,15 @@ public static class SettingsFingerprint
     public static string ForFeatures(FeatureSettings features, string engine, string descriptorVersion) =>
         Digest(JsonSerializer.Serialize(new { engine, descriptorVersion, features }, Canonical));
 
+    /// <summary>
+    /// Fingerprint of what shapes one pair's outcome once both images' features exist (the key of
+    /// the pair-result cache with the two images): the feature fingerprint, every estimation
+    /// setting and the algorithm version. Alignment and output settings are not part of it, so a
+    /// change there reuses every pair.
+    /// </summary>
+    public static string ForPair(string featureFingerprint, EstimationSettings estimation, int algorithmVersion) =>
+        Digest(JsonSerializer.Serialize(new { featureFingerprint, estimation, algorithm = algorithmVersion }, Canonical));
+
     public static string Digest(string canonical)
     {
         byte[] hash = SHA256.HashData(Encoding.UTF8.GetBytes(canonical));

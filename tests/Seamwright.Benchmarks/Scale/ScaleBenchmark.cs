@@ -96,7 +96,7 @@ internal static class ScaleBenchmark
         if (StageTimes.FromLogs(output, since) is { } s)
         {
             Console.WriteLine($"  stages: images {s.ImagesS:0.0} s ({s.Images} images, {s.ImagesFromCache} from the feature cache), "
-                + $"pairs {s.PairsS:0.0} s ({s.Pairs} pairs), alignment + outputs {s.AlignAndOutputsS:0.0} s");
+                + $"pairs {s.PairsS:0.0} s ({s.Pairs} pairs, {s.PairsEstimated} estimated), alignment + outputs {s.AlignAndOutputsS:0.0} s");
         }
         foreach (string line in result.Output.Split('\n').Where(l => l.Contains("grid:", StringComparison.Ordinal) || l.Contains("pairs would", StringComparison.Ordinal)))
         {

@@ -9,7 +9,7 @@ namespace Seamwright.Benchmarks.Scale;
 /// estimation, or the pair cache), and alignment plus outputs (joint refinement, preview,
 /// report, sidecars, manifest).
 /// </summary>
-internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAndOutputsS, int Images, int ImagesFromCache, int Pairs)
+internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAndOutputsS, int Images, int ImagesFromCache, int Pairs, int PairsEstimated)
 {
     public static StageTimes? FromLogs(string outputRoot, DateTimeOffset since)
     {
@@ -19,7 +19,7 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
             return null;
         }
         DateTimeOffset? started = null, lastImage = null, planned = null, lastPair = null, finished = null;
-        int images = 0, cached = 0, pairs = 0;
+        int images = 0, cached = 0, pairs = 0, estimated = -1;
         foreach (string file in Directory.GetFiles(logs, "*.log").Order(StringComparer.Ordinal))
         {
             foreach (string line in ReadShared(file))
@@ -54,6 +54,10 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
                     lastPair = t;
                     pairs++;
                 }
+                else if (mt.Contains("pairs estimated", StringComparison.Ordinal) && root.TryGetProperty("Estimated", out var est))
+                {
+                    estimated = est.GetInt32();
+                }
                 else if (mt.Contains("{Outcome}", StringComparison.Ordinal) && mt.StartsWith("Set ", StringComparison.Ordinal))
                 {
                     finished = t;
@@ -68,7 +72,7 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
         var pairsStart = planned ?? imagesEnd;
         var pairsEnd = lastPair ?? pairsStart;
         return new StageTimes((pairsStart - started.Value).TotalSeconds, (pairsEnd - pairsStart).TotalSeconds,
-            (finished.Value - pairsEnd).TotalSeconds, images, cached, pairs);
+            (finished.Value - pairsEnd).TotalSeconds, images, cached, pairs, estimated);
     }
 
     private static IEnumerable<string> ReadShared(string path)

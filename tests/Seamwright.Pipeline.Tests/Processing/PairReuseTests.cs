@@ -1,0 +1,213 @@
+using System.Text.RegularExpressions;
+using Seamwright.Core.Geometry;
+using Seamwright.Core.Synthetic;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Output;
+using Seamwright.Pipeline.Processing;
+using Seamwright.Pipeline.Settings;
+using Seamwright.Tests.Support;
+
+namespace Seamwright.Pipeline.Tests.Processing;
+
+/// <summary>
+/// The pair-result cache: after an image is replaced, added or removed only the pairs involving it
+/// are estimated (counted by a decorator around the real engine), and the set's outputs equal
+/// those of a clean run on the same inputs byte for byte (apart from the run number).
+/// </summary>
+public sealed partial class PairReuseTests
+{
+    private const int W = 240, H = 180;
+
+    [Fact]
+    public void Rerun_ImageReplaced_OnlyItsPairsEstimatedAndOutputsEqualCleanRun()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 3, 3);
+        var (session, engine) = Open(dir.Sub("in"), dir.Sub("out"));
+        using (session)
+        {
+            Process(session);
+            Assert.Equal(12, engine.Estimates); // 3 x 3 grid: 6 horizontal + 6 vertical links
+            WriteTile(dir.Sub("in/g"), 1, 1, noiseSeed: 777); // the middle tile re-shot
+            engine.Estimates = 0;
+            Process(session);
+            Assert.Equal(4, engine.Estimates); // its four neighbours only
+        }
+        AssertEqualsCleanRun(dir, "g");
+    }
+
+    [Fact]
+    public void Rerun_ImageAddedThenRemoved_OnlyNewPairsEstimatedAndOutputsEqualCleanRun()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 3, 2);
+        var (session, engine) = Open(dir.Sub("in"), dir.Sub("out"));
+        using (session)
+        {
+            Process(session);
+            Assert.Equal(7, engine.Estimates); // 2 rows of 3: 4 horizontal + 3 vertical
+            WriteTile(dir.Sub("in/g"), 0, 3, noiseSeed: 5); // a fourth column tile in the first row
+            engine.Estimates = 0;
+            Process(session);
+            Assert.Equal(1, engine.Estimates); // r1c3 - r1c4 (no r2c4)
+            AssertEqualsCleanRun(dir, "g");
+
+            File.Delete(dir.Sub("in/g/" + Name(1, 0)));
+            engine.Estimates = 0;
+            Process(session);
+            Assert.Equal(0, engine.Estimates); // its pairs just leave the plan
+        }
+        AssertEqualsCleanRun(dir, "g");
+    }
+
+    [Fact]
+    public void Rerun_AlignmentSettingChanged_NoPairEstimated()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 2, 2);
+        var (session, engine) = Open(dir.Sub("in"), dir.Sub("out"));
+        using (session)
+        {
+            Process(session);
+            Assert.Equal(4, engine.Estimates);
+            session.Context.Options.Profile("default").Alignment.RobustScalePx *= 2;
+            var set = session.Catalog.Discover().Single();
+            Assert.False(session.Context.IsUpToDate(set)); // the set fingerprint changed ...
+            engine.Estimates = 0;
+            Process(session);
+            Assert.Equal(0, engine.Estimates); // ... but no pair did
+        }
+    }
+
+    [Fact]
+    public void Rerun_DamagedPairEntry_RecomputedWithSameOutputs()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 2, 2);
+        var (session, engine) = Open(dir.Sub("in"), dir.Sub("out"));
+        using (session)
+        {
+            Process(session);
+            string first = File.ReadAllText(dir.Sub("out/g/" + Name(0, 0) + ".seam.json"));
+            var entries = Directory.GetFiles(dir.Sub("out/.seamwright/pairs"), "*.bin", SearchOption.AllDirectories).Order(StringComparer.Ordinal).ToArray();
+            Assert.Equal(4, entries.Length);
+            byte[] bytes = File.ReadAllBytes(entries[0]);
+            bytes[bytes.Length / 2] ^= 0x40;
+            File.WriteAllBytes(entries[0], bytes);
+            File.WriteAllBytes(entries[1], bytes[..10]);
+            engine.Estimates = 0;
+            new SetProcessor(session.Context).Process(session.Catalog.Discover().Single(), false, CancellationToken.None);
+            Assert.Equal(2, engine.Estimates);
+            string second = File.ReadAllText(dir.Sub("out/g/" + Name(0, 0) + ".seam.json"));
+            Assert.Equal(Normalise(first), Normalise(second));
+        }
+    }
+
+    private static void AssertEqualsCleanRun(ScratchFolder dir, string setId)
+    {
+        string clean = dir.Sub("clean-" + Guid.NewGuid().ToString("N")[..8]);
+        var (session, engine) = Open(dir.Sub("in"), clean);
+        using (session)
+        {
+            Process(session);
+            Assert.True(engine.Estimates > 0);
+        }
+        var reused = OutputFiles(Path.Combine(dir.Sub("out"), setId));
+        var fresh = OutputFiles(Path.Combine(clean, setId));
+        Assert.Equal(fresh.Keys.Order(StringComparer.Ordinal), reused.Keys.Order(StringComparer.Ordinal));
+        foreach (var (name, bytes) in fresh)
+        {
+            if (name == OutputLayout.ManifestName)
+            {
+                continue; // lists the hashes of files that carry the run number; every file is compared itself
+            }
+            if (name.EndsWith(".jpg", StringComparison.Ordinal))
+            {
+                Assert.True(bytes.AsSpan().SequenceEqual(reused[name]), $"{name} differs from a clean run");
+            }
+            else
+            {
+                string a = Normalise(System.Text.Encoding.UTF8.GetString(bytes)), b = Normalise(System.Text.Encoding.UTF8.GetString(reused[name]));
+                int at = Enumerable.Range(0, Math.Min(a.Length, b.Length)).FirstOrDefault(i => a[i] != b[i]);
+                Assert.True(a == b, $"{name} differs from a clean run at {at}: clean '{a[Math.Max(0, at - 80)..Math.Min(a.Length, at + 80)]}' reused '{b[Math.Max(0, at - 80)..Math.Min(b.Length, at + 80)]}'");
+            }
+        }
+    }
+
+    private static Dictionary<string, byte[]> OutputFiles(string folder) =>
+        Directory.EnumerateFiles(folder, "*", SearchOption.AllDirectories)
+            .ToDictionary(f => Path.GetRelativePath(folder, f).Replace('\\', '/'), File.ReadAllBytes, StringComparer.Ordinal);
+
+    /// <summary>The run number is the only field allowed to differ (JSON "run", the report's run label).</summary>
+    private static string Normalise(string text) => RunNumber().Replace(text, "run#");
+
+    [GeneratedRegex(@"""run"": ?\d+|run <code>\d+</code>|run \d+(?=<)")]
+    private static partial Regex RunNumber();
+
+    private static void Process(RootSession session)
+    {
+        var set = session.Catalog.Discover().Single();
+        var outcome = new SetProcessor(session.Context).Process(set, false, CancellationToken.None);
+        Assert.True(outcome.Kind == SetOutcomeKind.Done, outcome.Reason);
+    }
+
+    private static (RootSession, CountingEngine) Open(string input, string output)
+    {
+        var options = new SeamwrightOptions();
+        options.Profiles["default"] = new ProfileSettings();
+        var engine = new CountingEngine(new FeaturesEngine());
+        return (RootSession.Open(options.RootFor(input, output), options, engine, new MemoryBudget(256L << 20), new SemaphoreSlim(2), NullObserver.Instance), engine);
+    }
+
+    private static string Name(int row, int col) => $"tile_r{row + 1}_c{col + 1}.png";
+
+    private static void WriteGrid(string folder, int cols, int rows)
+    {
+        Directory.CreateDirectory(folder);
+        for (int r = 0; r < rows; r++)
+        {
+            for (int c = 0; c < cols; c++)
+            {
+                WriteTile(folder, r, c, noiseSeed: (ulong)(r * 10 + c));
+            }
+        }
+    }
+
+    /// <summary>One tile of an estate-map scene at a 170 x 130 px pitch (about 30 % overlap), rendered by the project's renderer.</summary>
+    private static void WriteTile(string folder, int row, int col, ulong noiseSeed)
+    {
+        var scene = new ProceduralScene(4242, SceneStyle.EstateMap);
+        var toScene = Transform2D.Translation(col * 170.0 + 300, row * 130.0 + 300);
+        var pixels = ImageEffects.AddGaussianNoise(SceneRenderer.Render(scene, W, H, toScene, samplesPerAxis: 1), 1.5, noiseSeed);
+        string path = Path.Combine(folder, Name(row, col));
+        File.Delete(path);
+        ImageWriter.WritePng(path, pixels);
+    }
+
+    /// <summary>The real engine, counting the pairs it estimates.</summary>
+    private sealed class CountingEngine(IPairEngine inner) : IPairEngine
+    {
+        private int _estimates;
+
+        public int Estimates { get => Volatile.Read(ref _estimates); set => Volatile.Write(ref _estimates, value); }
+
+        public string Name => inner.Name;
+
+        public string DescriptorVersion => inner.DescriptorVersion;
+
+        public int AlgorithmVersion => inner.AlgorithmVersion;
+
+        public ImageAnalysis Analyze(string path, FeatureSettings features, LimitSettings limits, MemoryBudget budget, CancellationToken cancel) =>
+            inner.Analyze(path, features, limits, budget, cancel);
+
+        public byte[] Encode(ImageAnalysis analysis) => inner.Encode(analysis);
+
+        public ImageAnalysis Decode(ReadOnlySpan<byte> data) => inner.Decode(data);
+
+        public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed)
+        {
+            Interlocked.Increment(ref _estimates);
+            return inner.EstimatePair(a, b, settings, seed);
+        }
+    }
+}
