@@ -18,8 +18,11 @@ internal sealed record PairCounts(int Total, int Accepted, int Weak, int Rejecte
 /// <summary>A set or file named with its state and reason.</summary>
 internal sealed record NamedReason(string Name, string State, string? Reason);
 
-/// <summary>The last finished run.</summary>
-internal sealed record LastRun(long RunId, string Set, DateTime? FinishedUtc);
+/// <summary>The last finished run (and the node that made it, on a shared ledger).</summary>
+internal sealed record LastRun(long RunId, string Set, DateTime? FinishedUtc, string? Node = null);
+
+/// <summary>A node sharing the ledger: its last heartbeat (age by the database's clock), alive while within a lease, and the sets it holds claims on.</summary>
+internal sealed record NodeStatus(string Node, int ProcessId, DateTime LastHeartbeatUtc, double HeartbeatAgeSeconds, bool Alive, IReadOnlyList<string> Sets);
 
 /// <summary>The service block: its judged state and the figures of its last heartbeat (null when there is none).</summary>
 internal sealed record ServiceStatus(string State, bool Healthy, string? Note, double? HeartbeatAgeSeconds, OperationsFigures? Figures);
@@ -39,20 +42,21 @@ internal sealed record RootStatus(
     IReadOnlyList<NamedReason> SetsNotDone,
     IReadOnlyList<NamedReason> BadFiles,
     LastRun? LastFinishedRun,
-    ServiceStatus Service)
+    ServiceStatus Service,
+    IReadOnlyList<NodeStatus>? Nodes = null)
 {
     public const string SchemaId = "seamwright.status.v1";
 
     /// <summary>Exit code for this root: 0 running and healthy, 4 no service running, 5 unhealthy or not responding.</summary>
     public int ExitCode => ServiceState.ExitCode(Service.State, Service.Healthy);
 
-    public static RootStatus Read(string output, DateTimeOffset now)
+    public static RootStatus Read(string output, DateTimeOffset now, Pipeline.Settings.StateSettings? state = null)
     {
         var service = ReadService(output, now);
         StateStore store;
         try
         {
-            store = StateStore.Open(output, readOnly: true);
+            store = StateStore.Open(output, state, readOnly: true);
         }
         catch (FileNotFoundException)
         {
@@ -75,10 +79,18 @@ internal sealed record RootStatus(
                 new PairCounts(current.Sum(s => s.Pairs), current.Sum(s => s.Accepted), current.Sum(s => s.Weak), current.Sum(s => s.Rejected)),
                 sets.Where(s => s.State != SetStates.Done).Select(s => new NamedReason(s.SetId, s.State, s.Reason)).ToList(),
                 live.Where(f => f.State == "bad").Select(f => new NamedReason(f.Path, f.State, f.Reason)).ToList(),
-                done.Count > 0 ? new LastRun(done[^1].RunId, done[^1].SetId, done[^1].FinishedUtc) : null,
-                service);
+                done.Count > 0 ? new LastRun(done[^1].RunId, done[^1].SetId, done[^1].FinishedUtc, done[^1].Node) : null,
+                service,
+                store.IsShared ? ReadNodes(store, state!.LeaseSeconds) : null);
         }
     }
+
+    private static List<NodeStatus> ReadNodes(StateStore store, double leaseSeconds) =>
+        store.Nodes().Select(n =>
+        {
+            double age = Math.Round(Math.Max(0, (n.DatabaseNowUtc - n.LastBeatUtc).TotalSeconds), 1);
+            return new NodeStatus(n.Node, n.ProcessId, n.LastBeatUtc, age, age <= leaseSeconds, n.Sets);
+        }).ToList();
 
     /// <summary>The service of this output root, from the heartbeat file it rewrites while healthy.</summary>
     private static ServiceStatus ReadService(string output, DateTimeOffset now)

@@ -53,6 +53,7 @@ internal static class StatusCommand
             }
             outputs.Add(File.Exists(Path.Combine(p, StateStore.StateFolder, StateStore.DatabaseName))
                 || File.Exists(Path.Combine(p, StateStore.StateFolder, Operations.HeartbeatFile.FileName))
+                || File.Exists(RootIdentity.PathOf(p))
                 ? p
                 : options.RootFor(p, a.Value("--output") is { } o ? Path.GetFullPath(o) : null).EffectiveOutput);
         }
@@ -65,7 +66,16 @@ internal static class StatusCommand
             return RunCommand.Bad("no PATH given and no roots configured: seamwright " + Usage);
         }
         var now = DateTimeOffset.UtcNow;
-        var statuses = outputs.Select(o => RootStatus.Read(o, now)).ToList();
+        List<RootStatus> statuses;
+        try
+        {
+            statuses = outputs.Select(o => RootStatus.Read(o, now, options.State)).ToList();
+        }
+        catch (System.Data.Common.DbException e)
+        {
+            System.Console.Error.WriteLine("seamwright: the shared ledger cannot be reached: " + e.Message);
+            return ExitCodes.Fatal;
+        }
         if (a.Flag("--json"))
         {
             // One object for one root; several roots: {"schema", "roots": [...]}.
@@ -114,7 +124,13 @@ internal static class StatusCommand
             }
             if (s.LastFinishedRun is { } last)
             {
-                w.WriteLine($"  last finished run: {last.RunId} of {last.Set} at {last.FinishedUtc?.ToString("u", CultureInfo.InvariantCulture)}");
+                w.WriteLine($"  last finished run: {last.RunId} of {last.Set} at {last.FinishedUtc?.ToString("u", CultureInfo.InvariantCulture)}"
+                    + (last.Node is null ? "" : " by node " + last.Node));
+            }
+            foreach (var n in s.Nodes ?? [])
+            {
+                string sets = n.Sets.Count == 0 ? "no set" : string.Join(", ", n.Sets);
+                w.WriteLine($"  node {n.Node,-16} {(n.Alive ? "alive" : "SILENT"),-6} last heartbeat {n.LastHeartbeatUtc:u} ({n.HeartbeatAgeSeconds:0} s ago), process {n.ProcessId}, working on: {sets}");
             }
         }
         w.Write(Operations.StatusReport.Render(s.Service.State, s.Service.Note, s.Service.Figures, now));

@@ -124,6 +124,7 @@ internal static class WatchCommand
             builder.Services.AddHostedService<WatcherService>();
             builder.Services.AddHostedService<SchedulerService>();
             builder.Services.AddHostedService<WorkerService>();
+            builder.Services.AddHostedService<LeaseService>();
             using var host = builder.Build();
             var loops = HostExit.LoopsOf(host);
             var operations = host.Services.GetService<OperationsLoop>(); // resolved now: Run disposes the host's services
@@ -153,7 +154,7 @@ internal static class WatchCommand
             System.Console.Error.WriteLine("seamwright: cannot start: " + e.Message);
             return ExitCodes.BadArguments;
         }
-        catch (Exception e) when (e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
+        catch (Exception e) when (e is OutputRootBusyException or System.Data.Common.DbException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
         {
             Log.Fatal(e, "Stopped by a fatal error: {Message}", e.Message);
             System.Console.Error.WriteLine("seamwright: " + e.Message);

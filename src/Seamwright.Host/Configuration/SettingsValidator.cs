@@ -27,6 +27,7 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
         Range(e, $"{S}:Service:FeatureMemoryMegabytes", o.Service.FeatureMemoryMegabytes, 1, 1048576, "MB");
         Range(e, $"{S}:Service:QueueCapacity", o.Service.QueueCapacity, 16, 1000000, "entries");
         Range(e, $"{S}:Service:ShutdownSeconds", o.Service.ShutdownSeconds, 1, 600, "seconds");
+        CheckState(e, $"{S}:State", o.State, o.Service);
         Range(e, $"{S}:Limits:MaxFileMegabytes", o.Limits.MaxFileMegabytes, 0.001, 1048576, "MB");
         Range(e, $"{S}:Limits:MaxMegapixels", o.Limits.MaxMegapixels, 0.0001, 100000, "megapixels");
         if (!EngineFactory.Names.Contains(o.Engine, StringComparer.Ordinal))
@@ -124,6 +125,24 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
         if (!string.IsNullOrEmpty(r.SetPattern))
         {
             Regex(e, $"{k}:SetPattern", r.SetPattern, r.SetKeyGroups.ToArray());
+        }
+    }
+
+    private static void CheckState(List<string> e, string k, StateSettings s, ServiceSettings service)
+    {
+        if (!Pipeline.State.StateProviders.IsKnown(s.Provider))
+        {
+            e.Add($"{k}:Provider is '{s.Provider}'; allowed: {Pipeline.State.StateProviders.Sqlite}, {Pipeline.State.StateProviders.PostgreSql}");
+        }
+        else if (Pipeline.State.StateProviders.IsPostgreSql(s.Provider) && string.IsNullOrWhiteSpace(s.ConnectionString))
+        {
+            e.Add($"{k}:ConnectionString is empty; the {Pipeline.State.StateProviders.PostgreSql} provider needs an Npgsql connection string");
+        }
+        Range(e, $"{k}:LeaseSeconds", s.LeaseSeconds, 2, 3600, "seconds");
+        Range(e, $"{k}:CommandTimeoutSeconds", s.CommandTimeoutSeconds, 1, 600, "seconds");
+        if (service.NodeName.Length > 100 || service.NodeName.Any(char.IsControl))
+        {
+            e.Add("Seamwright:Service:NodeName is not usable; allowed: up to 100 printable characters (\"\" = the host name)");
         }
     }
 

@@ -33,6 +33,8 @@ internal sealed class TrackedSet(string id, DateTime nowUtc)
     /// <summary>An input changed while the set was queued or running: look again when it returns.</summary>
     public bool ChangedWhileBusy { get; set; }
     public string LastWhy { get; set; } = "";
+    /// <summary>A deferred set (claimed by another node, or the shared ledger unreachable) is not taken again before this.</summary>
+    public DateTime RetryAfterUtc { get; set; } = DateTime.MinValue;
 }
 
 /// <summary>
@@ -231,7 +233,7 @@ internal sealed class RootTracker(int index, RootSession session)
     /// <summary>Sets that are complete now, as jobs (their stable files only when overdue).</summary>
     public IEnumerable<SetJob> Ready(DateTime now, double stableSeconds)
     {
-        foreach (var set in _sets.Values.Where(s => s.Phase == SetPhase.Waiting).OrderBy(s => s.FirstSeenUtc).ThenBy(s => s.Id, StringComparer.Ordinal))
+        foreach (var set in _sets.Values.Where(s => s.Phase == SetPhase.Waiting && s.RetryAfterUtc <= now).OrderBy(s => s.FirstSeenUtc).ThenBy(s => s.Id, StringComparer.Ordinal))
         {
             var stable = set.Files.Values.Where(f => (now - f.StableSinceUtc).TotalSeconds >= stableSeconds).Select(f => f.File).ToList();
             string profile = Session.Catalog.ProfileFor(set.Id);
@@ -257,6 +259,9 @@ internal sealed class RootTracker(int index, RootSession session)
         }
     }
 
+    /// <summary>How long a deferred set waits before it is offered again (another node's run or an outage usually ends sooner than a lease).</summary>
+    public TimeSpan DeferredRetry { get; init; } = TimeSpan.FromSeconds(5);
+
     public void Queued(string setId)
     {
         var set = _sets[setId];
@@ -279,6 +284,11 @@ internal sealed class RootTracker(int index, RootSession session)
         if (outcome.Kind == SetOutcomeKind.Changed)
         {
             set.LastChangeUtc = now;
+        }
+        if (outcome.Kind == SetOutcomeKind.Deferred)
+        {
+            set.RetryAfterUtc = now + DeferredRetry;
+            set.LastWhy = outcome.Reason ?? "deferred";
         }
         if (set.ChangedWhileBusy && set.Phase is SetPhase.Done or SetPhase.Failed)
         {

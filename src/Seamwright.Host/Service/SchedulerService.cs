@@ -32,76 +32,85 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 var now = DateTime.UtcNow;
                 var opts = runtime.Options.Service;
                 ops?.Health.Beat(LoopName);
-                var rescan = runtime.TakeRescanRequest();
-                while (runtime.Hints.Reader.TryRead(out var hint))
+                try
                 {
-                    if (hint.Path is null || !trackers[hint.Root].ApplyHint(hint.Path, now))
+                    var rescan = runtime.TakeRescanRequest();
+                    while (runtime.Hints.Reader.TryRead(out var hint))
                     {
-                        rescan = RescanKind.Requested;
+                        if (hint.Path is null || !trackers[hint.Root].ApplyHint(hint.Path, now))
+                        {
+                            rescan = RescanKind.Requested;
+                        }
                     }
-                }
-                if (rescan != RescanKind.None)
-                {
+                    if (rescan != RescanKind.None)
+                    {
+                        foreach (var t in trackers)
+                        {
+                            var found = t.Rescan(now);
+                            if (rescan == RescanKind.Periodic)
+                            {
+                                found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
+                            }
+                        }
+                    }
+                    RecreateSilentWatchers(trackers);
+                    if (runtime.SettingsChanged)
+                    {
+                        runtime.SettingsChanged = false;
+                        foreach (var t in trackers)
+                        {
+                            int n = t.ApplySettingsChange(now);
+                            LogSettingsChanged(log, t.Session.Catalog.RootPath, n);
+                        }
+                    }
+                    while (runtime.Results.Reader.TryRead(out var result))
+                    {
+                        var key = (result.Root, result.Outcome.SetId);
+                        if (_busy.Remove(key, out var job))
+                        {
+                            if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
+                                && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
+                            {
+                                ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
+                            }
+                            trackers[result.Root].Finished(job, result.Outcome, now);
+                        }
+                    }
                     foreach (var t in trackers)
                     {
-                        var found = t.Rescan(now);
-                        if (rescan == RescanKind.Periodic)
+                        t.Relook(now, opts.StableSeconds);
+                        // Below the free-space threshold no new set is taken; sets in progress finish.
+                        if (pending.Count == 0 && ops?.Disk?.Paused != true && !runtime.LedgerDown)
                         {
-                            found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
+                            foreach (var job in t.Ready(now, opts.StableSeconds))
+                            {
+                                t.Queued(job.Set.SetId);
+                                _busy[(job.Root, job.Set.SetId)] = job;
+                                pending.Enqueue(job);
+                                LogReady(log, job.Set.SetId, job.Set.Files.Count, job.Incomplete);
+                            }
+                        }
+                    }
+                    while (pending.Count > 0 && runtime.Jobs.Writer.TryWrite(pending.Peek()))
+                    {
+                        var sent = pending.Dequeue();
+                        trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
+                    }
+                    if (ops is not null)
+                    {
+                        ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
+                        ops.PublishWaiting(WaitingSets(trackers, now, opts.StableSeconds));
+                        if (round++ % 20 == 0)
+                        {
+                            ops.PublishStuck(StuckSets(trackers, now));
                         }
                     }
                 }
-                RecreateSilentWatchers(trackers);
-                if (runtime.SettingsChanged)
+                catch (System.Data.Common.DbException e) when (runtime.Roots.Any(r => r.Context.Store.IsShared))
                 {
-                    runtime.SettingsChanged = false;
-                    foreach (var t in trackers)
-                    {
-                        int n = t.ApplySettingsChange(now);
-                        LogSettingsChanged(log, t.Session.Catalog.RootPath, n);
-                    }
-                }
-                while (runtime.Results.Reader.TryRead(out var result))
-                {
-                    var key = (result.Root, result.Outcome.SetId);
-                    if (_busy.Remove(key, out var job))
-                    {
-                        if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
-                            && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
-                        {
-                            ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
-                        }
-                        trackers[result.Root].Finished(job, result.Outcome, now);
-                    }
-                }
-                foreach (var t in trackers)
-                {
-                    t.Relook(now, opts.StableSeconds);
-                    // Below the free-space threshold no new set is taken; sets in progress finish.
-                    if (pending.Count == 0 && ops?.Disk?.Paused != true)
-                    {
-                        foreach (var job in t.Ready(now, opts.StableSeconds))
-                        {
-                            t.Queued(job.Set.SetId);
-                            _busy[(job.Root, job.Set.SetId)] = job;
-                            pending.Enqueue(job);
-                            LogReady(log, job.Set.SetId, job.Set.Files.Count, job.Incomplete);
-                        }
-                    }
-                }
-                while (pending.Count > 0 && runtime.Jobs.Writer.TryWrite(pending.Peek()))
-                {
-                    var sent = pending.Dequeue();
-                    trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
-                }
-                if (ops is not null)
-                {
-                    ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
-                    ops.PublishWaiting(WaitingSets(trackers, now, opts.StableSeconds));
-                    if (round++ % 20 == 0)
-                    {
-                        ops.PublishStuck(StuckSets(trackers, now));
-                    }
+                    // The shared ledger is unreachable: nothing new is taken; the next round (or rescan) catches up.
+                    runtime.LedgerDown = true;
+                    LogLedgerUnreachable(log, e.Message);
                 }
                 using var tick = CancellationTokenSource.CreateLinkedTokenSource(stoppingToken);
                 tick.CancelAfter(opts.PollMilliseconds);
@@ -192,6 +201,9 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Settings reloaded: {Count} sets of {Root} are stale and will be redone")]
     private static partial void LogSettingsChanged(ILogger logger, string root, int count);
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "The shared ledger is unreachable; intake paused: {Reason}")]
+    private static partial void LogLedgerUnreachable(ILogger logger, string reason);
 
     [LoggerMessage(Level = LogLevel.Critical, Message = "The scheduler loop failed")]
     private static partial void LogFatal(ILogger logger, Exception error);

@@ -57,6 +57,9 @@ internal sealed class ServiceRuntime
     /// <summary>Supervised decoding and the health loop (null in tests that run the loops bare).</summary>
     public ServiceOperations? Ops { get; set; }
 
+    /// <summary>True while the shared ledger cannot be reached (set by the lease loop and the scheduler): no new set is taken.</summary>
+    public volatile bool LedgerDown;
+
     /// <summary>Set when the settings were reloaded; the scheduler re-checks every set's fingerprint.</summary>
     public volatile bool SettingsChanged;
 

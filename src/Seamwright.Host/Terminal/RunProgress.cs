@@ -125,6 +125,7 @@ internal sealed class RunProgress(ILogger log, bool interactive) : IProcessingOb
         SetOutcomeKind.Done when o.Summary is { } s =>
             $"done (run {o.RunId}): {s.Images} images, {s.Pairs} pairs ({s.Accepted} accepted, {s.Weak} weak, {s.Rejected} rejected), {s.BadFiles} bad files" + (s.Incomplete ? ", incomplete" : ""),
         SetOutcomeKind.Unchanged => "unchanged since its last run",
+        SetOutcomeKind.Deferred => "not processed now: " + o.Reason,
         SetOutcomeKind.Changed => "an input changed during the run; it will be redone: " + o.Reason,
         _ => "failed: " + o.Reason,
     };

@@ -56,8 +56,51 @@ public static class AtomicFile
     /// <summary>Makes the renames inside <paramref name="folder"/> durable (fsync of the folder on POSIX).</summary>
     public static void SyncDirectory(string folder) => FlushFolder(folder);
 
+    /// <summary>
+    /// Names the writer in temporary file names (<c>.NAME.TAG.GUID.seamtmp</c>): the process id, or,
+    /// when several nodes share an output root, <see cref="WriterTagFor"/> of the node plus the
+    /// process id, so a node sweeps only what its own earlier processes left.
+    /// </summary>
+    public static string WriterTag { get; set; } =
+        (Environment.GetEnvironmentVariable(WriterPrefixVariable) ?? "") + Environment.ProcessId.ToString(System.Globalization.CultureInfo.InvariantCulture);
+
+    /// <summary>Environment variable carrying a node's tag prefix to the worker processes it starts (they inherit it).</summary>
+    public const string WriterPrefixVariable = "SEAMWRIGHT_WRITER_PREFIX";
+
+    /// <summary>The tag prefix of a node's temporary files ("n" + the node name reduced to letters, digits, '_' and '-', then '-').</summary>
+    public static string WriterTagFor(string node)
+    {
+        ArgumentNullException.ThrowIfNull(node);
+        var safe = new string(node.Select(c => char.IsAsciiLetterOrDigit(c) || c is '-' or '_' ? c : '_').ToArray());
+        return "n" + safe + "-";
+    }
+
+    /// <summary>Temporary files of other writers are left alone for this long (another node may be writing them).</summary>
+    public static readonly TimeSpan ForeignTemporaryAge = TimeSpan.FromHours(1);
+
+    /// <summary>
+    /// On an output root shared by several nodes: deletes the temporary files whose writer tag starts
+    /// with <paramref name="ownerPrefix"/> (this node's earlier processes, all dead now) and any older
+    /// than <see cref="ForeignTemporaryAge"/>; sets the process's <see cref="WriterTag"/>. Returns how many.
+    /// </summary>
+    public static int SweepTemporaries(string root, string ownerPrefix)
+    {
+        ArgumentNullException.ThrowIfNull(ownerPrefix);
+        WriterTag = ownerPrefix + Environment.ProcessId.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        Environment.SetEnvironmentVariable(WriterPrefixVariable, ownerPrefix);
+        var cutoff = DateTime.UtcNow - ForeignTemporaryAge;
+        return Sweep(root, f =>
+        {
+            var parts = Path.GetFileName(f).Split('.');
+            bool own = parts.Length >= 4 && parts[^3].StartsWith(ownerPrefix, StringComparison.Ordinal);
+            return own || File.GetLastWriteTimeUtc(f) < cutoff;
+        });
+    }
+
     /// <summary>Deletes temporary files left by an interrupted write under <paramref name="root"/>; returns how many.</summary>
-    public static int SweepTemporaries(string root)
+    public static int SweepTemporaries(string root) => Sweep(root, _ => true);
+
+    private static int Sweep(string root, Func<string, bool> mine)
     {
         if (!Directory.Exists(root))
         {
@@ -66,7 +109,7 @@ public static class AtomicFile
         int n = 0;
         foreach (var f in Directory.EnumerateFiles(root, "*" + TemporarySuffix, SearchOption.AllDirectories))
         {
-            if (IsTemporary(f))
+            if (IsTemporary(f) && mine(f))
             {
                 try
                 {
@@ -94,7 +137,7 @@ public static class AtomicFile
         string full = Path.GetFullPath(path);
         string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
         Directory.CreateDirectory(folder);
-        string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.{Guid.NewGuid():N}{TemporarySuffix}");
+        string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{WriterTag}.{Guid.NewGuid():N}{TemporarySuffix}");
         try
         {
             using (var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536))

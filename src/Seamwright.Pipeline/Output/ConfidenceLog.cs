@@ -5,18 +5,45 @@ namespace Seamwright.Pipeline.Output;
 /// <summary>
 /// The append-only <c>confidence.jsonl</c> at the output root: one JSON object per line. Each
 /// batch is written with one write and flushed to disk; at open, a torn last line (no newline
-/// at the end, left by a crash mid-append) is cut off.
+/// at the end, left by a crash mid-append) is cut off. Several processes (nodes sharing the output
+/// root) may append: every append, the cut at open and a retention rewrite hold an exclusive
+/// advisory lock on <c>.seamwright/confidence.lock</c> (flock on Unix, a share-mode lock on
+/// Windows; released by the OS when a process dies), so whole batches never interleave.
 /// </summary>
 public sealed class ConfidenceLog
 {
     public const string FileName = "confidence.jsonl";
     private readonly object _gate = new();
 
+    public const string LockName = "confidence.lock";
+    private readonly string _lockPath;
+
     public ConfidenceLog(string outputRoot)
     {
         Path = System.IO.Path.Combine(outputRoot, FileName);
-        Directory.CreateDirectory(outputRoot);
-        DroppedBytes = DropTornTail(Path);
+        string stateFolder = System.IO.Path.Combine(outputRoot, State.StateStore.StateFolder);
+        Directory.CreateDirectory(stateFolder);
+        _lockPath = System.IO.Path.Combine(stateFolder, LockName);
+        using (HoldFileLock())
+        {
+            DroppedBytes = DropTornTail(Path);
+        }
+    }
+
+    /// <summary>Takes the cross-process append lock, waiting (polling) while another process holds it.</summary>
+    private FileStream HoldFileLock()
+    {
+        for (int attempt = 0; ; attempt++)
+        {
+            try
+            {
+                return new FileStream(_lockPath, FileMode.OpenOrCreate, FileAccess.ReadWrite, FileShare.None);
+            }
+            catch (IOException) when (attempt < 30_000)
+            {
+                Thread.Sleep(attempt < 100 ? 2 : 20); // held by another process's append (milliseconds) or rewrite
+            }
+        }
     }
 
     public string Path { get; }
@@ -38,6 +65,7 @@ public sealed class ConfidenceLog
         byte[] bytes = Encoding.UTF8.GetBytes(sb.ToString());
         lock (_gate)
         {
+            using var held = HoldFileLock();
             using var fs = new FileStream(Path, FileMode.Append, FileAccess.Write, FileShare.Read);
             fs.Write(bytes);
             fs.Flush(flushToDisk: true);
@@ -50,6 +78,7 @@ public sealed class ConfidenceLog
         ArgumentNullException.ThrowIfNull(action);
         lock (_gate)
         {
+            using var held = HoldFileLock();
             action();
         }
     }

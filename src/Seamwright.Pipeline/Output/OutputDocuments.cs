@@ -97,6 +97,9 @@ public sealed record ManifestDocument
     public required int AlgorithmVersion { get; init; }
     public required string ToolVersion { get; init; }
     public required string Engine { get; init; }
+    /// <summary>The node that made the run; written only when several nodes share the ledger (PostgreSql).</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public string? Node { get; init; }
     public required string[] Images { get; init; }
     public required ManifestSkipped[] Skipped { get; init; }
     public required ManifestCounts Counts { get; init; }
@@ -128,6 +131,9 @@ public sealed record ConfidenceRecord
     public required string[] Reasons { get; init; }
     public required ConfidenceTimings TimingsMs { get; init; }
     public required string SettingsFingerprint { get; init; }
+    /// <summary>The node that made the run; written only when several nodes share the ledger (PostgreSql).</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public string? Node { get; init; }
 }
 
 public sealed record ConfidenceConsensus(int Sampling, int Refined, int Final, int RunnerUp, int LinearPrograms, int Iterations);

@@ -50,6 +50,8 @@ public enum SetOutcomeKind
     Changed,
     /// <summary>The run failed as a whole (reason given); the set is recorded as failed.</summary>
     Failed,
+    /// <summary>Not this node's now: another node holds the set's claim, this node lost its lease, or the shared ledger is unreachable. Look again later.</summary>
+    Deferred,
 }
 
 public sealed record SetOutcome(string SetId, SetOutcomeKind Kind, long? RunId, State.RunSummary? Summary, string? Reason);

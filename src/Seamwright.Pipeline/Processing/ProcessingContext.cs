@@ -23,6 +23,12 @@ public sealed class ProcessingContext
     /// <summary>Bounds image and pair jobs across all sets of the process.</summary>
     public required SemaphoreSlim JobSlots { get; init; }
     public IProcessingObserver Observer { get; init; } = NullObserver.Instance;
+    /// <summary>This node's name (claims, runs; manifests and confidence records when the ledger is shared).</summary>
+    public string NodeName { get; init; } = Environment.MachineName;
+    /// <summary>How long a claim on a set lasts unless renewed (shared ledger only).</summary>
+    public long LeaseMilliseconds { get; init; } = 30_000;
+    /// <summary>The node name written into outputs: only when several nodes share the ledger, so one-node outputs stay as they were.</summary>
+    public string? OutputNode => Store.IsShared ? NodeName : null;
     /// <summary>Checks accepted pairs of <c>frames</c> sets (rig baseline); null = no check. Set once before processing starts.</summary>
     public IPairReview? Review { get; set; }
 

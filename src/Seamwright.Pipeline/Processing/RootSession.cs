@@ -13,9 +13,9 @@ namespace Seamwright.Pipeline.Processing;
 /// </summary>
 public sealed class RootSession : IDisposable
 {
-    private readonly OutputRootLock _lock;
+    private readonly OutputRootLock? _lock;
 
-    private RootSession(OutputRootLock rootLock, ProcessingContext context, SetCatalog catalog)
+    private RootSession(OutputRootLock? rootLock, ProcessingContext context, SetCatalog catalog)
     {
         _lock = rootLock;
         Context = context;
@@ -44,14 +44,24 @@ public sealed class RootSession : IDisposable
         }
         string output = root.EffectiveOutput;
         Directory.CreateDirectory(output);
-        var rootLock = OutputRootLock.Acquire(output);
+        // With a shared ledger several nodes serve one output root (claims keep them apart); the
+        // single-process lock applies to the SQLite ledger only.
+        bool shared = StateProviders.IsPostgreSql(options.State.Provider);
+        string node = options.Service.EffectiveNodeName;
+        var rootLock = shared ? null : OutputRootLock.Acquire(output);
         try
         {
-            int swept = AtomicFile.SweepTemporaries(output);
-            var store = StateStore.Open(output);
-            var recovered = store.RecoverInterrupted();
+            int swept = shared ? AtomicFile.SweepTemporaries(output, AtomicFile.WriterTagFor(node)) : AtomicFile.SweepTemporaries(output);
+            var store = StateStore.Open(output, options.State);
+            var recovered = store.RecoverInterrupted(node);
+            if (shared)
+            {
+                store.RegisterNode(node, Environment.ProcessId);
+            }
             var ctx = new ProcessingContext
             {
+                NodeName = node,
+                LeaseMilliseconds = options.State.LeaseMilliseconds,
                 OutputRoot = output,
                 Options = options,
                 Store = store,
@@ -72,7 +82,7 @@ public sealed class RootSession : IDisposable
         }
         catch
         {
-            rootLock.Dispose();
+            rootLock?.Dispose();
             throw;
         }
     }
@@ -80,6 +90,6 @@ public sealed class RootSession : IDisposable
     public void Dispose()
     {
         Context.Store.Dispose();
-        _lock.Dispose();
+        _lock?.Dispose();
     }
 }

@@ -33,12 +33,19 @@ public sealed class SetProcessor(ProcessingContext ctx)
 
     private sealed class InputsChangedException(string message) : Exception(message);
 
+    private sealed class LeaseLostException(string message) : Exception(message);
+
     public SetOutcome Process(SetInputs set, bool incomplete, CancellationToken cancel)
     {
         ArgumentNullException.ThrowIfNull(set);
+        return ctx.Store.IsShared ? SharedRuns.ProcessClaimed(ctx, set, () => ProcessOwned(set, incomplete, cancel)) : ProcessOwned(set, incomplete, cancel);
+    }
+
+    private SetOutcome ProcessOwned(SetInputs set, bool incomplete, CancellationToken cancel)
+    {
         var profile = ctx.Options.Profile(set.Profile);
         string fingerprint = ctx.FingerprintFor(set.Profile);
-        long runId = ctx.Store.BeginRun(set.SetId, set.Profile, fingerprint, ProcessingContext.ToolVersion);
+        long runId = ctx.Store.BeginRun(set.SetId, set.Profile, fingerprint, ProcessingContext.ToolVersion, ctx.NodeName);
         ctx.Observer.SetStarted(set.SetId, runId, set.Files.Count);
         try
         {
@@ -58,6 +65,17 @@ public sealed class SetProcessor(ProcessingContext ctx)
                 System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(first).Throw();
                 throw;
             }
+        }
+        catch (LeaseLostException e)
+        {
+            ctx.Store.AbandonRun(runId, set.SetId, SetStates.Pending, set.Profile, e.Message);
+            var outcome = new SetOutcome(set.SetId, SetOutcomeKind.Deferred, runId, null, e.Message);
+            ctx.Observer.SetFinished(outcome);
+            return outcome;
+        }
+        catch (System.Data.Common.DbException) when (ctx.Store.IsShared)
+        {
+            throw; // the shared ledger is unreachable: SharedRuns defers the set (recording anything would fail too)
         }
         catch (InputsChangedException e)
         {
@@ -297,6 +315,15 @@ public sealed class SetProcessor(ProcessingContext ctx)
         {
             records.Add(PairRecord(set.SetId, runId, fingerprint, good[pr.A].File.Key, good[pr.B].File.Key, pr));
         }
+        if (ctx.OutputNode is { } node)
+        {
+            records = records.Select(r => r with { Node = node }).ToList();
+        }
+        // A node that lost its claim (a lease that ran out while it was cut off) publishes nothing.
+        if (ctx.Store.IsShared && !ctx.Store.HoldsClaim(set.SetId, ctx.NodeName, ctx.LeaseMilliseconds))
+        {
+            throw new LeaseLostException($"this node ({ctx.NodeName}) lost its claim on the set before publishing; another node redoes it");
+        }
         ctx.Log.Append(records);
 
         int badCount = images.Count(i => i.BadReason is not null) + plan.Skipped.Count;
@@ -316,6 +343,7 @@ public sealed class SetProcessor(ProcessingContext ctx)
             AlgorithmVersion = ctx.AlgorithmVersion,
             ToolVersion = ProcessingContext.ToolVersion,
             Engine = ctx.Engine.Name,
+            Node = ctx.OutputNode,
             Images = good.Select(g => g.File.Key).ToArray(),
             Skipped = images.Where(i => i.BadReason is not null).Select(i => new ManifestSkipped(i.File.Key, i.BadReason!))
                 .Concat(plan.Skipped.Select(s => new ManifestSkipped(s.Key, s.Reason))).ToArray(),

@@ -56,6 +56,11 @@ public sealed class ServiceSettings
     public int QueueCapacity { get; set; } = 4096;
     /// <summary>Seconds the host waits for work to stop at shutdown (keep below the service manager's limit).</summary>
     public double ShutdownSeconds { get; set; } = 30;
+    /// <summary>This node's name in the ledger, manifests and confidence records ("" = the host name).</summary>
+    public string NodeName { get; set; } = "";
+
+    /// <summary>The configured node name, or the host name.</summary>
+    public string EffectiveNodeName => string.IsNullOrWhiteSpace(NodeName) ? Environment.MachineName : NodeName.Trim();
 }
 
 /// <summary>Limits checked before any decode.</summary>
@@ -76,6 +81,8 @@ public sealed class SeamwrightOptions
     public Dictionary<string, ProfileSettings> Profiles { get; set; } = new(StringComparer.Ordinal);
     public ServiceSettings Service { get; set; } = new();
     public LimitSettings Limits { get; set; } = new();
+    /// <summary>The ledger's provider (SQLite per output root, or a shared PostgreSQL database).</summary>
+    public StateSettings State { get; set; } = new();
     /// <summary>
     /// The pair engine: "features" (the real detector, matcher and estimator) or "checksum" (a fast
     /// engine for the service's own tests: it decodes every image but estimates nothing real).

@@ -22,7 +22,17 @@ public sealed record FileRecord(string Path, string SetId, long Size, long Mtime
 public sealed record RunSummary(int Images, int BadFiles, int Pairs, int Accepted, int Weak, int Rejected, bool Incomplete);
 
 /// <summary>One run row.</summary>
-public sealed record RunRecord(long RunId, string SetId, string State, string Fingerprint, string ToolVersion, DateTime StartedUtc, DateTime? FinishedUtc, RunSummary? Summary);
+public sealed record RunRecord(long RunId, string SetId, string State, string Fingerprint, string ToolVersion, DateTime StartedUtc, DateTime? FinishedUtc, RunSummary? Summary)
+{
+    /// <summary>The node that made the run (null for runs recorded before schema version 2).</summary>
+    public string? Node { get; init; }
+}
+
+/// <summary>A node sharing the ledger: its last heartbeat (database clock) and the sets it holds claims on.</summary>
+public sealed record NodeRecord(string Node, int ProcessId, DateTime StartedUtc, DateTime LastBeatUtc, DateTime DatabaseNowUtc, IReadOnlyList<string> Sets);
+
+/// <summary>What a claim attempt found: claimed (possibly taking over an expired lease), or held by another node.</summary>
+public sealed record ClaimAttempt(bool Claimed, string? HeldBy, bool TookOver);
 
 /// <summary>One pair result row.</summary>
 public sealed record PairResultRecord(string ImageA, string ImageB, string Status, int Inliers, int Matches, string Reasons);

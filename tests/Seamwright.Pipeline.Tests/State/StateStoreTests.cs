@@ -10,7 +10,7 @@ public class StateStoreTests
     {
         using var dir = new ScratchFolder();
         using var store = StateStore.Open(dir.Path);
-        Assert.Equal(1, store.SchemaVersion());
+        Assert.Equal(StateSchema.Version, store.SchemaVersion());
     }
 
     [Fact]
