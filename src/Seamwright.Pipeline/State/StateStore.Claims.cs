@@ -5,7 +5,7 @@ namespace Seamwright.Pipeline.State;
 /// row; the claim carries a lease in the database's clock, renewed by the node's heartbeat. The
 /// claim is decided under a row lock taken with SKIP LOCKED, so two nodes never both win and a
 /// node never waits on another's decision. A lease that ran out (a dead or cut-off node) may be
-/// taken over; the previous holder's running run is then abandoned, and that node refuses to
+/// taken over; every run of the set still marked running is then abandoned, and the old holder refuses to
 /// publish (<see cref="HoldsClaim"/> fails).
 /// </summary>
 public sealed partial class StateStore
@@ -34,11 +34,10 @@ public sealed partial class StateStore
             tx.Rollback();
             return new ClaimAttempt(false, holder, false);
         }
-        if (heldElsewhere)
-        {
-            Exec(db, tx, "UPDATE runs SET state='abandoned', finished=@t WHERE set_id=@s AND state='running' AND node=@h",
-                ("t", DateTime.UtcNow.Ticks), ("s", setId), ("h", holder));
-        }
+        // The claim is exclusive: any run of the set still marked running is dead (a previous holder
+        // whose lease ran out, or this node's own run cut off by a ledger outage).
+        Exec(db, tx, "UPDATE runs SET state='abandoned', finished=@t WHERE set_id=@s AND state='running'",
+            ("t", DateTime.UtcNow.Ticks), ("s", setId));
         Exec(db, tx, $"UPDATE claims SET node=@n, lease_until={now} + @l, claimed={now}, run_id=NULL WHERE set_id=@s",
             ("n", node), ("l", leaseMilliseconds), ("s", setId));
         tx.Commit();
