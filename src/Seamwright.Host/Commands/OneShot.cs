@@ -98,7 +98,9 @@ internal static class OneShot
                     : $"{todo.Count} of {sets.Count} sets would be redone:");
                 foreach (var (s, why) in todo)
                 {
-                    System.Console.Out.WriteLine($"  {s.SetId}\t{why}");
+                    var count = PairRedoPreview.Count(session.Context, s);
+                    System.Console.Out.WriteLine($"  {s.SetId}\t{why}; {count.ToEstimate} of {count.Planned} pairs would be estimated"
+                        + (count.NotAnalysed > 0 ? $" ({count.NotAnalysed} images not analysed yet)" : ""));
                 }
                 return ExitCodes.Ok;
             }

@@ -72,6 +72,8 @@ internal sealed class SeamwrightProcess : IDisposable
 
     public bool HasExited => _process.HasExited;
 
+    public int Id => _process.Id;
+
     public int ProcessId => _process.Id;
 
     public int ExitCode => _process.ExitCode;

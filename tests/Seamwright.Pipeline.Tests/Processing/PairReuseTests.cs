@@ -29,6 +29,7 @@ public sealed partial class PairReuseTests
             Process(session);
             Assert.Equal(12, engine.Estimates); // 3 x 3 grid: 6 horizontal + 6 vertical links
             WriteTile(dir.Sub("in/g"), 1, 1, noiseSeed: 777); // the middle tile re-shot
+            Assert.Equal(new PairRedoCount(12, 4, 1), PairRedoPreview.Count(session.Context, session.Catalog.Discover().Single()));
             engine.Estimates = 0;
             Process(session);
             Assert.Equal(4, engine.Estimates); // its four neighbours only
@@ -58,6 +59,28 @@ public sealed partial class PairReuseTests
             Assert.Equal(0, engine.Estimates); // its pairs just leave the plan
         }
         AssertEqualsCleanRun(dir, "g");
+    }
+
+    [Fact]
+    public void Process_TinyFeatureMemoryOneWorker_OutputsEqualDefaultTwoWorkers()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 3, 3);
+        var (wide, _) = Open(dir.Sub("in"), dir.Sub("out"));
+        using (wide)
+        {
+            Process(wide);
+        }
+        // 1 MB holds hardly any entry: pairs read their images back from the feature cache again and again.
+        var (tight, _) = Open(dir.Sub("in"), dir.Sub("tight"), featureMegabytes: 1, workers: 1);
+        using (tight)
+        {
+            Process(tight);
+        }
+        var a = OutputFiles(dir.Sub("out/g"));
+        var b = OutputFiles(dir.Sub("tight/g"));
+        Assert.Equal(a.Keys.Order(StringComparer.Ordinal), b.Keys.Order(StringComparer.Ordinal));
+        Assert.All(a, kv => Assert.True(kv.Value.AsSpan().SequenceEqual(b[kv.Key]), kv.Key + " differs"));
     }
 
     [Fact]
@@ -151,12 +174,14 @@ public sealed partial class PairReuseTests
         Assert.True(outcome.Kind == SetOutcomeKind.Done, outcome.Reason);
     }
 
-    private static (RootSession, CountingEngine) Open(string input, string output)
+    private static (RootSession, CountingEngine) Open(string input, string output, int featureMegabytes = 256, int workers = 2)
     {
         var options = new SeamwrightOptions();
         options.Profiles["default"] = new ProfileSettings();
+        options.Service.FeatureMemoryMegabytes = featureMegabytes;
+        options.Service.MaxParallelJobs = workers;
         var engine = new CountingEngine(new FeaturesEngine());
-        return (RootSession.Open(options.RootFor(input, output), options, engine, new MemoryBudget(256L << 20), new SemaphoreSlim(2), NullObserver.Instance), engine);
+        return (RootSession.Open(options.RootFor(input, output), options, engine, new MemoryBudget(256L << 20), new SemaphoreSlim(workers), NullObserver.Instance), engine);
     }
 
     private static string Name(int row, int col) => $"tile_r{row + 1}_c{col + 1}.png";
