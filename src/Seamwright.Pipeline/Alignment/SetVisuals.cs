@@ -29,13 +29,14 @@ public static class SetVisuals
         options.Validate();
         var thumbnails = new byte[]?[images.Count];
         var tried = new bool[images.Count];
+        int thumbSide = options.ThumbnailSideFor(images.Count);
         SixLabors.ImageSharp.Image<SixLabors.ImageSharp.PixelFormats.Rgb24>? OpenAndThumb(int index, int side)
         {
-            var image = open(index, Math.Max(side, options.ThumbnailLongSide));
+            var image = open(index, Math.Max(side, thumbSide));
             tried[index] = true;
             if (image is not null && thumbnails[index] is null)
             {
-                thumbnails[index] = Thumbnails.Jpeg(image, options.ThumbnailLongSide);
+                thumbnails[index] = Thumbnails.Jpeg(image, thumbSide);
             }
             return image;
         }
@@ -50,7 +51,16 @@ public static class SetVisuals
         {
             if (!tried[i])
             {
-                using var image = OpenAndThumb(i, options.ThumbnailLongSide);
+                using var image = OpenAndThumb(i, thumbSide);
+            }
+        }
+        long spent = 0;
+        for (int i = 0; i < images.Count; i++)
+        {
+            spent += thumbnails[i]?.Length ?? 0;
+            if (spent > options.ThumbnailBudgetBytes)
+            {
+                thumbnails[i] = null;
             }
         }
         var names = images.Select(i => i.Name).ToList();

@@ -12,6 +12,17 @@ public sealed record PreviewOptions
     /// <summary>Longest side of a report thumbnail in pixels.</summary>
     public int ThumbnailLongSide { get; init; } = 160;
 
+    /// <summary>
+    /// Total bytes of report thumbnails (JPEG): above 150 images each thumbnail shrinks with
+    /// sqrt(150 / n), to no less than 48 px, and thumbnails past the budget are left out (in set
+    /// order; the preview still shows those images), so a report of thousands stays a few MB.
+    /// </summary>
+    public long ThumbnailBudgetBytes { get; init; } = 1_000_000;
+
+    /// <summary>The thumbnail long side for a set of <paramref name="images"/> images.</summary>
+    public int ThumbnailSideFor(int images) =>
+        images <= 150 ? ThumbnailLongSide : Math.Min(ThumbnailLongSide, Math.Max(48, (int)(ThumbnailLongSide * Math.Sqrt(150.0 / images))));
+
     public void Validate()
     {
         if (MaxLongSide < 16 || MaxLongSide > 16384)

@@ -5,12 +5,18 @@ using System.Text;
 namespace Seamwright.Pipeline.Report;
 
 /// <summary>
-/// The pair graph as inline SVG: one node per image at its centre in the reference frame (unplaced
-/// images in a row below), one edge per pair coloured by status.
+/// The pair graph as inline SVG: one node per image at its centre in the reference frame, so the
+/// graph has the shape of the mosaic (unplaced images in rows below), one edge per pair styled by
+/// status. Nodes shrink with the spacing of their neighbours and carry their number only where it
+/// fits; dash styles are the main cue (solid accepted, dashed weak, dotted rejected, dash-dot left
+/// out), colours a second one (see <see cref="ReportAssets"/>), so the graph also reads in gray.
 /// </summary>
 internal static class PairGraphSvg
 {
-    private const double Width = 760, Margin = 36;
+    private const double Margin = 36;
+
+    /// <summary>Below this node radius (SVG units) numbers are left out (judgement: 11 px monospace digits need about 8).</summary>
+    private const double LabelRadius = 8;
 
     public static string Render(SetReport report)
     {
@@ -19,9 +25,12 @@ internal static class PairGraphSvg
         {
             index.TryAdd(report.Images[i].Name, i);
         }
-        var positions = Layout(report.Images, out double height);
+        double width = WidthFor(report.Images.Count);
+        var positions = Layout(report.Images, width, out double height);
+        double radius = NodeRadius(positions, report.Images);
         var sb = new StringBuilder();
-        sb.Append(F($"<svg class=\"graph\" viewBox=\"0 0 {Width:0} {height:0}\" role=\"img\" aria-label=\"pair graph\">"));
+        sb.Append(F($"<svg class=\"graph\" viewBox=\"0 0 {width:0} {height:0}\" role=\"img\" aria-label=\"pair graph\">"));
+        sb.Append(F($"<g class=\"edges\" stroke-width=\"{Math.Clamp(radius / 4, 0.6, 3):0.##}\">"));
         for (int p = 0; p < report.Pairs.Count; p++)
         {
             var pair = report.Pairs[p];
@@ -29,12 +38,13 @@ internal static class PairGraphSvg
             {
                 continue;
             }
-            var (colour, dash) = pair.AlignmentNote is not null ? ("var(--out)", "2 6")
+            double u = Math.Clamp(radius / 4, 0.6, 3); // dash lengths in stroke widths
+            var (colour, dash) = pair.AlignmentNote is not null ? ("var(--out)", F($"{4 * u:0.#} {1.5 * u:0.#} {0.1:0.#} {1.5 * u:0.#}"))
                 : pair.Status switch
                 {
                     "accepted" => ("var(--ok)", ""),
-                    "weak" => ("var(--weak)", "8 4"),
-                    _ => ("var(--bad)", "3 5"),
+                    "weak" => ("var(--weak)", F($"{3 * u:0.#} {1.5 * u:0.#}")),
+                    _ => ("var(--bad)", F($"{0.1:0.#} {2 * u:0.#}")),
                 };
             sb.Append(F($"<line id=\"edge-{p}\" x1=\"{positions[a].X:0.#}\" y1=\"{positions[a].Y:0.#}\" x2=\"{positions[b].X:0.#}\" y2=\"{positions[b].Y:0.#}\" style=\"stroke:{colour}\""));
             if (dash.Length > 0)
@@ -43,19 +53,61 @@ internal static class PairGraphSvg
             }
             sb.Append("><title>").Append(WebUtility.HtmlEncode($"{pair.ImageA} - {pair.ImageB}: {pair.Status}")).Append("</title></line>");
         }
+        sb.Append("</g>");
+        bool labels = radius >= LabelRadius;
         for (int i = 0; i < report.Images.Count; i++)
         {
             var image = report.Images[i];
             string cls = image.IsReference ? "ref" : image.ToReference is null ? "unplaced" : "";
-            sb.Append(F($"<g><circle r=\"13\" cx=\"{positions[i].X:0.#}\" cy=\"{positions[i].Y:0.#}\" class=\"{cls}\"><title>"));
-            sb.Append(WebUtility.HtmlEncode(image.Name)).Append("</title></circle>");
-            sb.Append(F($"<text x=\"{positions[i].X:0.#}\" y=\"{positions[i].Y:0.#}\">{i + 1}</text></g>"));
+            sb.Append(F($"<g><circle data-i=\"{i}\" r=\"{radius:0.#}\" cx=\"{positions[i].X:0.#}\" cy=\"{positions[i].Y:0.#}\" class=\"{cls}\"><title>"));
+            sb.Append(WebUtility.HtmlEncode($"{i + 1}. {image.Name}")).Append("</title></circle>");
+            if (labels)
+            {
+                sb.Append(F($"<text x=\"{positions[i].X:0.#}\" y=\"{positions[i].Y:0.#}\">{i + 1}</text>"));
+            }
+            sb.Append("</g>");
         }
         sb.Append("</svg>");
         return sb.ToString();
     }
 
-    private static (double X, double Y)[] Layout(IReadOnlyList<ReportImage> images, out double height)
+    /// <summary>Wider drawings for larger sets (SVG units; the page scales it to its width).</summary>
+    private static double WidthFor(int images) => images <= 100 ? 760 : 1200;
+
+    /// <summary>13 units, or less when placed nodes lie closer: 0.35 of the median distance to the nearest other node, at least 1.5.</summary>
+    private static double NodeRadius((double X, double Y)[] positions, IReadOnlyList<ReportImage> images)
+    {
+        var placed = Enumerable.Range(0, images.Count).Where(i => images[i].ToReference is { Length: 9 }).Select(i => positions[i]).ToList();
+        if (placed.Count < 2)
+        {
+            return 13;
+        }
+        // Nearest neighbour by a sweep over x (sorted), stopping once the x gap exceeds the best distance.
+        var sorted = placed.OrderBy(p => p.X).ThenBy(p => p.Y).ToList();
+        var nearest = new double[sorted.Count];
+        for (int i = 0; i < sorted.Count; i++)
+        {
+            double best = double.MaxValue;
+            for (int dir = -1; dir <= 1; dir += 2)
+            {
+                for (int j = i + dir; j >= 0 && j < sorted.Count; j += dir)
+                {
+                    double dx = sorted[j].X - sorted[i].X;
+                    if (dx * dx >= best)
+                    {
+                        break;
+                    }
+                    double dy = sorted[j].Y - sorted[i].Y;
+                    best = Math.Min(best, dx * dx + dy * dy);
+                }
+            }
+            nearest[i] = Math.Sqrt(best);
+        }
+        Array.Sort(nearest);
+        return Math.Clamp(0.35 * nearest[nearest.Length / 2], 1.5, 13);
+    }
+
+    private static (double X, double Y)[] Layout(IReadOnlyList<ReportImage> images, double width, out double height)
     {
         var centres = new (double X, double Y)?[images.Count];
         for (int i = 0; i < images.Count; i++)
@@ -74,13 +126,13 @@ internal static class PairGraphSvg
         }
         var placed = centres.Where(c => c is not null).Select(c => c!.Value).ToList();
         var result = new (double X, double Y)[images.Count];
-        double inner = Width - 2 * Margin;
+        double inner = width - 2 * Margin;
         double placedHeight;
         if (placed.Count >= 2)
         {
             double minX = placed.Min(c => c.X), maxX = placed.Max(c => c.X), minY = placed.Min(c => c.Y), maxY = placed.Max(c => c.Y);
             double spanX = Math.Max(maxX - minX, 1e-9), spanY = Math.Max(maxY - minY, 1e-9);
-            double s = Math.Min(inner / spanX, 360 / spanY);
+            double s = Math.Min(inner / spanX, (images.Count <= 100 ? 360 : 900) / spanY);
             placedHeight = Math.Max(spanY * s, 40) + 2 * Margin;
             double offX = Margin + (inner - spanX * s) / 2;
             for (int i = 0; i < images.Count; i++)
@@ -98,7 +150,7 @@ internal static class PairGraphSvg
             for (int i = 0; i < images.Count; i++)
             {
                 double t = 2 * Math.PI * i / images.Count - Math.PI / 2;
-                result[i] = (Width / 2 + r * Math.Cos(t), Margin + r + r * Math.Sin(t));
+                result[i] = (width / 2 + r * Math.Cos(t), Margin + r + r * Math.Sin(t));
             }
             height = 2 * r + 2 * Margin;
             return result;
@@ -110,7 +162,7 @@ internal static class PairGraphSvg
             {
                 if (centres[i] is not null)
                 {
-                    result[i] = (Width / 2, Margin);
+                    result[i] = (width / 2, Margin);
                 }
             }
         }

@@ -5,7 +5,7 @@ internal static class ReportAssets
 {
     public const string Css = """
 :root{--paper:#f3f0e8;--card:#fffdf8;--ink:#1e2a32;--muted:#5d6b73;--rule:#d9d2c3;--accent:#0d6b6b;
---ok:#2f7d5b;--weak:#c08308;--bad:#b23a3a;--out:#6b4fa0;--mono:ui-monospace,SFMono-Regular,Menlo,Consolas,monospace}
+--ok:#1f4e79;--weak:#8a4f9e;--bad:#3b3b3b;--out:#1d8a8a;--mono:ui-monospace,SFMono-Regular,Menlo,Consolas,monospace}
 *{box-sizing:border-box}
 body{margin:0;background:var(--paper);color:var(--ink);font:15px/1.5 system-ui,-apple-system,"Segoe UI",Roboto,sans-serif}
 header{background:var(--ink);color:#f3f0e8;padding:18px 28px;display:flex;gap:18px;align-items:center;flex-wrap:wrap}
@@ -19,7 +19,11 @@ header .chip{background:#f3f0e8}
 main{max-width:1280px;margin:0 auto;padding:20px 28px 40px}
 section{background:var(--card);border:1px solid var(--rule);border-radius:4px;margin:18px 0;padding:16px 20px}
 h2{font-size:12px;text-transform:uppercase;letter-spacing:.14em;color:var(--accent);margin:0 0 12px;font-weight:700}
-.warn{border-left:4px solid var(--weak);background:#fff8e6}
+.warn{border-left:4px solid var(--weak);background:#f7f0fa}
+.problems ul{margin:0;padding-left:18px}
+.problems li{margin:2px 0}
+.pager{display:flex;gap:10px;align-items:center;margin:0 0 10px;flex-wrap:wrap;font-size:13px}
+.pager input,.pager select,.pager button{font:inherit;padding:2px 8px}
 .warn ul{margin:0;padding-left:18px}
 .top{display:grid;grid-template-columns:minmax(0,2fr) minmax(260px,1fr);gap:18px}
 @media (max-width:900px){.top{grid-template-columns:1fr}}
@@ -31,8 +35,8 @@ dl{display:grid;grid-template-columns:auto 1fr;gap:6px 14px;margin:0}
 dt{color:var(--muted);font-size:13px}
 dd{margin:0;font-family:var(--mono);font-size:13px;word-break:break-word}
 svg.graph{width:100%;height:auto;background:#fbf9f3;border:1px solid var(--rule)}
-svg.graph line{stroke-width:3;stroke-linecap:round}
-svg.graph line.hot{stroke-width:7}
+svg.graph line{stroke-linecap:round}
+svg.graph line.hot{stroke:var(--accent);stroke-width:4}
 svg.graph circle{fill:var(--card);stroke:var(--ink);stroke-width:2}
 svg.graph circle.ref{fill:var(--accent)}
 svg.graph circle.unplaced{stroke-dasharray:3 3;fill:#eee9dd}
@@ -65,13 +69,36 @@ footer{color:var(--muted);font-size:12px;text-align:center;padding:0 28px 30px}
 footer code{font-family:var(--mono)}
 """;
 
-    /// <summary>Sorts the confidence table by a clicked column; highlights a pair's edge on hover.</summary>
+    /// <summary>
+    /// Sorts the confidence table by a clicked column, filters it by image name and status, shows it
+    /// a page of 100 rows at a time, and highlights a pair's edge on hover.
+    /// </summary>
     public const string Script = """
 (function () {
   var table = document.getElementById('pairs');
   if (!table) { return; }
   var body = table.tBodies[0];
   var heads = table.tHead.rows[0].cells;
+  var pageSize = 100, page = 0;
+  var filter = document.getElementById('filter'), status = document.getElementById('status');
+  var label = document.getElementById('page');
+  function matching() {
+    var text = filter ? filter.value.trim().toLowerCase() : '';
+    var want = status ? status.value : '';
+    return Array.prototype.filter.call(body.rows, function (r) {
+      if (want && r.cells[2].getAttribute('data-v') !== want) { return false; }
+      return !text || r.cells[0].getAttribute('data-v').toLowerCase().indexOf(text) >= 0
+        || r.cells[1].getAttribute('data-v').toLowerCase().indexOf(text) >= 0;
+    });
+  }
+  function show() {
+    var rows = matching();
+    var pages = Math.max(1, Math.ceil(rows.length / pageSize));
+    page = Math.min(Math.max(page, 0), pages - 1);
+    Array.prototype.forEach.call(body.rows, function (r) { r.hidden = true; });
+    rows.slice(page * pageSize, (page + 1) * pageSize).forEach(function (r) { r.hidden = false; });
+    if (label) { label.textContent = 'page ' + (page + 1) + ' of ' + pages + ' (' + rows.length + ' of ' + body.rows.length + ' pairs)'; }
+  }
   Array.prototype.forEach.call(heads, function (th, col) {
     var button = th.querySelector('button');
     if (!button) { return; }
@@ -88,14 +115,21 @@ footer code{font-family:var(--mono)}
         return ascending ? c : -c;
       });
       rows.forEach(function (r) { body.appendChild(r); });
+      show();
     });
   });
+  if (filter) { filter.addEventListener('input', function () { page = 0; show(); }); }
+  if (status) { status.addEventListener('change', function () { page = 0; show(); }); }
+  var prev = document.getElementById('prev'), next = document.getElementById('next');
+  if (prev) { prev.addEventListener('click', function () { page--; show(); }); }
+  if (next) { next.addEventListener('click', function () { page++; show(); }); }
   Array.prototype.forEach.call(body.rows, function (row) {
     var edge = document.getElementById('edge-' + row.getAttribute('data-i'));
     if (!edge) { return; }
     row.addEventListener('mouseenter', function () { edge.classList.add('hot'); });
     row.addEventListener('mouseleave', function () { edge.classList.remove('hot'); });
   });
+  show();
 })();
 """;
 

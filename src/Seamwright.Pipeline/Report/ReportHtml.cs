@@ -30,6 +30,7 @@ public static class ReportHtml
             }
             sb.Append("</ul></section>\n");
         }
+        ReportProblems.Render(sb, report);
         sb.Append("<div class=\"top\">");
         sb.Append("<section><h2>Preview</h2>");
         if (report.PreviewJpeg is { Length: > 0 } preview)
@@ -49,9 +50,9 @@ public static class ReportHtml
         }
         sb.Append("</dl></section></div>\n");
         sb.Append("<section><h2>Pair graph</h2>").Append(PairGraphSvg.Render(report));
-        sb.Append("<div class=\"legend\"><span><i style=\"border-color:var(--ok)\"></i>accepted</span><span><i style=\"border-color:var(--weak);border-top-style:dashed\"></i>weak</span>")
-          .Append("<span><i style=\"border-color:var(--bad);border-top-style:dotted\"></i>rejected</span><span><i style=\"border-color:var(--out);border-top-style:dotted\"></i>left out of the alignment</span>")
-          .Append("<span>numbers: image order below; filled: reference</span></div></section>\n");
+        sb.Append("<div class=\"legend\">").Append(Key("var(--ok)", "", "accepted")).Append(Key("var(--weak)", "6 3", "weak"))
+          .Append(Key("var(--bad)", "0.1 4", "rejected")).Append(Key("var(--out)", "8 3 0.1 3", "left out of the alignment"))
+          .Append("<span>nodes at the images' aligned centres; numbers (where they fit): image order below; filled: reference</span></div></section>\n");
         Table(sb, report);
         Details(sb, report);
         Images(sb, report);
@@ -60,6 +61,10 @@ public static class ReportHtml
         sb.Append("<script>").Append(ReportAssets.Script).Append("</script>\n</body></html>\n");
         return sb.ToString();
     }
+
+    private static string Key(string colour, string dash, string label) =>
+        "<span><svg width=\"28\" height=\"8\" aria-hidden=\"true\"><line x1=\"2\" y1=\"4\" x2=\"26\" y2=\"4\" stroke-width=\"2\" style=\"stroke:" + colour
+        + "\"" + (dash.Length > 0 ? " stroke-dasharray=\"" + dash + "\"" : "") + "/></svg> " + label + "</span>";
 
     private static void Header(StringBuilder sb, SetReport report)
     {
@@ -75,7 +80,10 @@ public static class ReportHtml
 
     private static void Table(StringBuilder sb, SetReport report)
     {
-        sb.Append("<section><h2>Confidence</h2><table id=\"pairs\"><thead><tr>");
+        sb.Append("<section><h2>Confidence</h2><div class=\"pager\"><input id=\"filter\" type=\"search\" placeholder=\"filter by image name\" aria-label=\"filter by image name\">")
+          .Append("<select id=\"status\" aria-label=\"status\"><option value=\"\">every status</option><option>accepted</option><option>weak</option><option>rejected</option></select>")
+          .Append("<button type=\"button\" id=\"prev\">previous</button><span id=\"page\"></span><button type=\"button\" id=\"next\">next</button></div>");
+        sb.Append("<table id=\"pairs\"><thead><tr>");
         foreach (var (label, type) in new[] { ("Image A", "text"), ("Image B", "text"), ("Status", "text"), ("Inliers", "num"), ("Matches", "num"), ("Inlier ratio", "num"), ("RMS px", "num"), ("Corner σ px", "num") })
         {
             sb.Append("<th data-type=\"").Append(type).Append("\"><button type=\"button\">").Append(E(label)).Append("</button></th>");
@@ -99,12 +107,20 @@ public static class ReportHtml
         sb.Append("</tbody></table></section>\n");
     }
 
+    /// <summary>Above this many pairs only the pairs with a problem get a details entry (the table has every pair).</summary>
+    public const int AllDetailsUpTo = 200;
+
     private static void Details(StringBuilder sb, SetReport report)
     {
-        sb.Append("<section><h2>Pair details</h2>");
+        bool all = report.Pairs.Count <= AllDetailsUpTo;
+        sb.Append(all ? "<section><h2>Pair details</h2>" : "<section><h2>Pair details (pairs with a problem)</h2>");
         for (int i = 0; i < report.Pairs.Count; i++)
         {
             var p = report.Pairs[i];
+            if (!all && p.Status == "accepted" && p.AlignmentNote is null)
+            {
+                continue;
+            }
             sb.Append("<details><summary><span class=\"chip st-").Append(E(p.Status)).Append("\">").Append(E(p.Status)).Append("</span> ")
               .Append(E(p.ImageA)).Append(" – ").Append(E(p.ImageB)).Append("</summary><ul>");
             sb.Append(F($"<li>{p.Inliers} inliers of {p.Matches} matches; RMS {p.RmsPx:0.###} px; corner σ {p.CornerSigmaPx:0.###} px</li>"));
@@ -120,6 +136,9 @@ public static class ReportHtml
         }
         sb.Append("</section>\n");
     }
+
+    /// <summary>Above this many images the per-image matrices are left out (each sidecar holds its toReference).</summary>
+    public const int MatricesUpTo = 500;
 
     private static void Images(StringBuilder sb, SetReport report)
     {
@@ -142,7 +161,7 @@ public static class ReportHtml
             {
                 sb.Append("<div class=\"meta note\">").Append(E(image.Note)).Append("</div>");
             }
-            if (image.ToReference is { Length: 9 } m)
+            if (image.ToReference is { Length: 9 } m && report.Images.Count <= MatricesUpTo)
             {
                 sb.Append("<table class=\"m\" title=\"toReference (3x3, row-major)\">");
                 for (int r = 0; r < 3; r++)
