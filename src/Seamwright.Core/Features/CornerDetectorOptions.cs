@@ -7,7 +7,7 @@ public sealed record CornerDetectorOptions
     public int MaxFeatures { get; init; } = 4000;
 
     /// <summary>Pyramid levels (level 0 is the working image).</summary>
-    public int Levels { get; init; } = 6;
+    public int Levels { get; init; } = 8;
 
     /// <summary>Size ratio between neighbouring levels; Levels and ScaleFactor together must span a 2x zoom.</summary>
     public double ScaleFactor { get; init; } = 1.25;

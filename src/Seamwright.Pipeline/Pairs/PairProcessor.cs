@@ -44,31 +44,32 @@ public static class PairProcessor
             return Rejected(a, b, settings, result.Matches.Length, result.AmbiguousCount, [reason], "not run: too few matches", start, matchingMs);
         }
 
-        var matches = new Correspondence[result.Matches.Length];
-        for (int i = 0; i < matches.Length; i++)
-        {
-            var ka = a.Keypoints[result.Matches[i].IndexA];
-            var kb = b.Keypoints[result.Matches[i].IndexB];
-            matches[i] = new Correspondence(ka.X, ka.Y, kb.X, kb.Y);
-        }
+        var pairs = result.Matches;
+        var matches = Points(a, b, pairs);
         // Working-resolution corners carry about a working pixel of error: widen the first threshold accordingly.
         double coarse = Math.Max(threshold, 1.5 * Math.Max(a.WorkingScale, b.WorkingScale));
         var estimate = PairEstimator.Estimate(matches, a.FullSize, b.FullSize, options with { Threshold = coarse });
+        if (settings.Guided is { } guided && estimate.Status == PairStatus.Accepted)
+        {
+            (pairs, matches, estimate) = Guide(a, b, pairs, matches, estimate, guided, options with { Threshold = coarse }, 2 * coarse);
+        }
 
         int relocalized = 0;
         double relocalizeMs = 0;
         var final = estimate;
         var ties = matches;
-        if (estimate.Transform is { } model && settings.Relocalize)
+        if (estimate.Transform is { } model)
         {
             long relocStart = Stopwatch.GetTimestamp();
-            ties = (Correspondence[])matches.Clone();
-            relocalized = Relocalize(a, b, result.Matches, ties, model, coarse, settings);
+            if (settings.Relocalize)
+            {
+                ties = (Correspondence[])matches.Clone();
+                relocalized = Relocalize(a, b, pairs, ties, model, coarse, settings);
+            }
+            // A corner matched on two pyramid levels (and re-localised twice onto one anchor pixel) is one
+            // tie point: closer than one working pixel of the coarser image in both images is the same correspondence.
+            ties = DistinctTies.Distinct(ties, Math.Max(1.0, Math.Max(a.WorkingScale, b.WorkingScale)));
             relocalizeMs = Stopwatch.GetElapsedTime(relocStart).TotalMilliseconds;
-            final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
-        }
-        else if (coarse != threshold && estimate.Transform is not null)
-        {
             final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
         }
 
@@ -95,6 +96,35 @@ public static class PairProcessor
             TimingsMs = new PairTimings(matchingMs, t.Sampling, t.Refinement, relocalizeMs, t.Polish,
                 Stopwatch.GetElapsedTime(start).TotalMilliseconds),
         };
+    }
+
+    private static Correspondence[] Points(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs)
+    {
+        var points = new Correspondence[pairs.Length];
+        for (int i = 0; i < points.Length; i++)
+        {
+            var ka = a.Keypoints[pairs[i].IndexA];
+            var kb = b.Keypoints[pairs[i].IndexB];
+            points[i] = new Correspondence(ka.X, ka.Y, kb.X, kb.Y);
+        }
+        return points;
+    }
+
+    /// <summary>
+    /// Matches again with the accepted first estimate as prior (a window of the given radius around each
+    /// predicted position) and polishes from that estimate on the new matches; keeps the new set only when
+    /// it holds more inliers than the first.
+    /// </summary>
+    private static (FeatureMatch[], Correspondence[], PairEstimate) Guide(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs,
+        Correspondence[] matches, PairEstimate first, GuidedMatchOptions guided, EstimationOptions coarse, double radius)
+    {
+        var model = first.Transform!.Value;
+        var again = GuidedMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, model, guided with { Radius = radius });
+        var points = Points(a, b, again);
+        var second = PairEstimator.Repolish(points, first, a.FullSize, b.FullSize, coarse);
+        return second.Status == PairStatus.Accepted && second.Consensus.Final > first.Consensus.Final
+            ? (again, points, second with { Terminations = [.. second.Terminations, Inv($"guided matching: {again.Length} matches against {pairs.Length}")] })
+            : (pairs, matches, first);
     }
 
     /// <summary>Re-localises, in place, every match within twice the threshold of the model; returns how many succeeded.</summary>

@@ -25,6 +25,9 @@ public sealed record PairSettings
     /// </summary>
     public double RepeatedPatternFraction { get; init; } = 0.75;
 
+    /// <summary>Match again with an accepted first estimate as prior (null: off).</summary>
+    public GuidedMatchOptions? Guided { get; init; } = new();
+
     /// <summary>Re-localise tie points at full resolution before the final polish.</summary>
     public bool Relocalize { get; init; } = true;
 

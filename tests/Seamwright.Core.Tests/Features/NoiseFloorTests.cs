@@ -11,6 +11,8 @@ public class NoiseFloorTests(ITestOutputHelper output)
     [InlineData(0.5)]
     [InlineData(2.0)]
     [InlineData(6.0)]
+    [InlineData(12.0)]
+    [InlineData(20.0)]
     public void Extract_BlankPaperWithNoise_NoCorners(double sigma)
     {
         var blank = ImageEffects.AddGaussianNoise(ImageEffects.Blank(1200, 900, 200), sigma, 4);

@@ -13,7 +13,7 @@ namespace Seamwright.Pipeline.Tests.Pairs;
 public class HomogrPairTests(ITestOutputHelper output)
 {
     [Fact]
-    public void Process_HomogrImagePairs_TwelveOfSixteenUnderTenPixelsAndMedianAtMostOnePointFive()
+    public void Process_HomogrImagePairs_ThirteenOfSixteenUnderTenPixelsAndMedianAtMostOnePointTwoFive()
     {
         var set = HomogrSet.TryLoad();
         if (set is null)
@@ -43,7 +43,8 @@ public class HomogrPairTests(ITestOutputHelper output)
         int good = errors.Count(e => e < 10);
         double median = errors.Order().ElementAt(7) * 0.5 + errors.Order().ElementAt(8) * 0.5;
         output.WriteLine($"under 10 px: {good}/16, median {median:F2} px");
-        Assert.True(good >= 12, $"only {good} of 16 pairs under 10 px ({HomogrSet.Source})");
-        Assert.True(median <= 1.5, $"median validation error {median:F2} px above 1.5 px ({HomogrSet.Source})");
+        // Measured with guided matching: 13/16, median 1.14 px (1.34 before); issue 13's target is a median of at most 1.25 px.
+        Assert.True(good >= 13, $"only {good} of 16 pairs under 10 px ({HomogrSet.Source})");
+        Assert.True(median <= 1.25, $"median validation error {median:F2} px above 1.25 px ({HomogrSet.Source})");
     }
 }
