@@ -15,7 +15,7 @@ internal static class EstimateOutput
 {
     public static string ModelName(MotionModel model) => model.ToString().ToLowerInvariant();
 
-    public static string StatusName(PairStatus status) => status.ToString().ToLowerInvariant();
+    public static string StatusName(PairStatus status) => status.Word();
 
     public static string ToJson(PairEstimate e, ImageSize sizeA, ImageSize sizeB)
     {

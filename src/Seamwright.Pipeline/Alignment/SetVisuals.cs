@@ -68,7 +68,7 @@ public static class SetVisuals
             image.Name, image.Size.Width, image.Size.Height, thumbnails[i], alignment.Images[i].ToReference?.ToRowMajor(),
             alignment.Reference == i, alignment.Images[i].Reason ?? ComponentNote(alignment, i, names))).ToList();
         var reportPairs = pairs.Select(p => new ReportPair(
-            images[p.A].Name, images[p.B].Name, StatusName(p.Estimate.Status), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
+            images[p.A].Name, images[p.B].Name, p.Estimate.Status.Word(), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
             p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B))).ToList();
         var report = new SetReport(setName, runId, fingerprint, alignment.Model.ToString().ToLowerInvariant(), reportImages, reportPairs, preview,
             AlignmentSummary.Facts(alignment, names), AlignmentSummary.Warnings(alignment, names));
@@ -80,11 +80,4 @@ public static class SetVisuals
         var p = alignment.Images[index];
         return p.Component is int c && c > 0 && p.Reference is int r ? $"placed in a separate group, relative to {names[r]}" : null;
     }
-
-    private static string StatusName(PairStatus s) => s switch
-    {
-        PairStatus.Accepted => "accepted",
-        PairStatus.Weak => "weak",
-        _ => "rejected",
-    };
 }
