@@ -1,7 +1,6 @@
 using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
-using Microsoft.Extensions.Options;
 using Microsoft.Extensions.Primitives;
 using Seamwright.Host.Configuration;
 using Seamwright.Host.Operations;
@@ -60,10 +59,10 @@ internal static class WatchCommand
             ContentRootPath = AppContext.BaseDirectory,
         });
         builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
-        // Bound and validated again by the host at start (IValidateOptions + ValidateOnStart); the
-        // same validator already ran above so that a bad setting exits 2 before anything starts.
-        builder.Services.AddSingleton<IValidateOptions<SeamwrightOptions>, SettingsValidator>();
-        builder.Services.AddOptions<SeamwrightOptions>().Bind(builder.Configuration.GetSection(SeamwrightOptions.SectionName)).ValidateOnStart();
+        // Settings are bound and validated once, by SettingsLoader.Bind (above, and again on each
+        // reload): no IOptions<SeamwrightOptions> is registered, since nothing would read it. Each set
+        // run takes a RunPlan snapshot when it begins (docs/ARCHITECTURE.md), so a reload reaches
+        // only runs that begin after it.
         builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
         builder.Services.AddSystemd();
         builder.Services.Configure<HostOptions>(o =>
@@ -139,11 +138,6 @@ internal static class WatchCommand
             operations?.WriteStopped();
             Log.Information("Stopped");
             return ExitCodes.Ok;
-        }
-        catch (OptionsValidationException e)
-        {
-            System.Console.Error.WriteLine("seamwright: invalid settings: " + string.Join("; ", e.Failures));
-            return ExitCodes.BadArguments;
         }
         catch (Exception e) when (!started && e is OutputRootBusyException or DirectoryNotFoundException or NotSupportedException or IOException or UnauthorizedAccessException or InvalidOperationException)
         {

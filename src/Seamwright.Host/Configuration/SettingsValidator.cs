@@ -1,19 +1,18 @@
 using System.Text.RegularExpressions;
-using Microsoft.Extensions.Options;
 using Seamwright.Pipeline.Analysis;
 using Seamwright.Pipeline.Settings;
 
 namespace Seamwright.Host.Configuration;
 
 /// <summary>Checks every setting against its allowed range; each message names the setting's full key.</summary>
-internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
+/// <remarks>
+/// Pure: it reports and never edits what it checks. Called by <see cref="SettingsLoader.Bind"/>, the one
+/// place settings are bound, at start and on every reload. Not an <c>IValidateOptions</c> behind an
+/// <c>IOptionsMonitor</c>: the monitor validates inside the configuration's reload callback and throws
+/// there for a bad file, on a thread we do not own, where the service must instead log and keep the old settings.
+/// </remarks>
+internal static class SettingsValidator
 {
-    public ValidateOptionsResult Validate(string? name, SeamwrightOptions options)
-    {
-        var errors = Check(options);
-        return errors.Count == 0 ? ValidateOptionsResult.Success : ValidateOptionsResult.Fail(errors);
-    }
-
     public static List<string> Check(SeamwrightOptions o)
     {
         var e = new List<string>();
@@ -39,10 +38,6 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
             // The checksum engine marks every pair accepted with an identity transform: it exists for
             // the service's own tests and must never serve real folders by a slip in the settings.
             e.Add($"{S}:Engine is '{o.Engine}', a test engine (allowed only with SEAMWRIGHT_TEST_HOOKS=1); use 'features'");
-        }
-        if (!o.Profiles.ContainsKey("default"))
-        {
-            o.Profiles["default"] = new ProfileSettings();
         }
         foreach (var (name, p) in o.Profiles)
         {
@@ -111,15 +106,15 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
         {
             e.Add($"{k}:Path is empty; allowed: the folder to watch");
         }
-        if (!o.Profiles.ContainsKey(r.Profile))
+        if (!IsProfile(o, r.Profile))
         {
-            e.Add($"{k}:Profile is '{r.Profile}'; allowed: one of the profiles ({string.Join(", ", o.Profiles.Keys)})");
+            e.Add($"{k}:Profile is '{r.Profile}'; allowed: one of the profiles ({ProfileNames(o)})");
         }
         for (int j = 0; j < r.ProfileRules.Count; j++)
         {
-            if (!o.Profiles.ContainsKey(r.ProfileRules[j].Profile))
+            if (!IsProfile(o, r.ProfileRules[j].Profile))
             {
-                e.Add($"{k}:ProfileRules:{j}:Profile is '{r.ProfileRules[j].Profile}'; allowed: one of the profiles ({string.Join(", ", o.Profiles.Keys)})");
+                e.Add($"{k}:ProfileRules:{j}:Profile is '{r.ProfileRules[j].Profile}'; allowed: one of the profiles ({ProfileNames(o)})");
             }
         }
         if (!string.IsNullOrEmpty(r.SetPattern))
@@ -145,6 +140,11 @@ internal sealed class SettingsValidator : IValidateOptions<SeamwrightOptions>
             e.Add("Seamwright:Service:NodeName is not usable; allowed: up to 100 printable characters (\"\" = the host name)");
         }
     }
+
+    /// <summary>"default" always exists (<see cref="SeamwrightOptions.Profile"/> supplies it when not configured); the validator never adds it.</summary>
+    private static bool IsProfile(SeamwrightOptions o, string name) => name == "default" || o.Profiles.ContainsKey(name);
+
+    private static string ProfileNames(SeamwrightOptions o) => string.Join(", ", o.Profiles.Keys.Append("default").Distinct(StringComparer.Ordinal));
 
     private static void Range(List<string> e, string key, double value, double min, double max, string unit)
     {

@@ -34,8 +34,9 @@ internal sealed partial class WorkerService(ServiceRuntime runtime, IHostApplica
     {
         await foreach (var job in runtime.Jobs.Reader.ReadAllAsync(stop).ConfigureAwait(false))
         {
+            // The run resolves its plan from the context's current settings when it begins;
+            // a reload meanwhile only affects runs that begin after it.
             var ctx = runtime.Roots[job.Root].Context;
-            ctx.Options = runtime.Options;
             SetOutcome outcome;
             try
             {

@@ -30,7 +30,7 @@ public sealed class ImageStage(ProcessingContext ctx)
         ArgumentNullException.ThrowIfNull(run);
         string featureFp = SettingsFingerprint.ForFeatures(run.Profile.Features, ctx.Engine.Name, ctx.Engine.DescriptorVersion);
         var results = run.Set.Files.Select(f => new AnalysedImage { File = f }).ToArray();
-        Parallel.ForEach(results, new ParallelOptions { MaxDegreeOfParallelism = ctx.Options.Service.MaxParallelJobs, CancellationToken = cancel }, r =>
+        Parallel.ForEach(results, new ParallelOptions { MaxDegreeOfParallelism = run.Plan.MaxParallelJobs, CancellationToken = cancel }, r =>
         {
             ctx.JobSlots.Wait(cancel);
             try
@@ -74,7 +74,7 @@ public sealed class ImageStage(ProcessingContext ctx)
     {
         try
         {
-            var analysis = ctx.Engine.Analyze(r.File.FullPath, run.Profile.Features, ctx.Options.Limits, ctx.Budget, cancel);
+            var analysis = ctx.Engine.Analyze(r.File.FullPath, run.Profile.Features, run.Plan.Limits, ctx.Budget, cancel);
             r.Decoded = true;
             // Features live in the cache from here on; the pairs read them back within a bounded memory (PairRunner).
             ctx.Cache.Put(r.Hash!, featureFp, analysis);

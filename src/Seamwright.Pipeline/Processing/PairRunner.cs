@@ -23,11 +23,13 @@ public sealed record PairRun(int A, int B, PairAnalysis Analysis, double PairMs,
 /// </summary>
 public static class PairRunner
 {
-    public static PairRun[] Run(ProcessingContext ctx, string setId, ProfileSettings profile, IReadOnlyList<PairImage> images,
+    /// <param name="runPlan">The run's settings snapshot (profile, limits, parallelism, feature memory): never the live options.</param>
+    public static PairRun[] Run(ProcessingContext ctx, RunPlan runPlan, string setId, IReadOnlyList<PairImage> images,
         IReadOnlyList<PlannedPair> plan, bool reportEach, CancellationToken cancel)
     {
         ArgumentNullException.ThrowIfNull(ctx);
-        ArgumentNullException.ThrowIfNull(profile);
+        ArgumentNullException.ThrowIfNull(runPlan);
+        var profile = runPlan.Profile;
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(plan);
         string featureFp = SettingsFingerprint.ForFeatures(profile.Features, ctx.Engine.Name, ctx.Engine.DescriptorVersion);
@@ -37,10 +39,10 @@ public static class PairRunner
         {
             pathOf.TryAdd(im.Hash, im.FullPath);
         }
-        var features = new FeatureLru((long)ctx.Options.Service.FeatureMemoryMegabytes << 20,
-            hash => LoadFeatures(ctx, profile, featureFp, hash, pathOf[hash], cancel));
+        var features = new FeatureLru((long)runPlan.FeatureMemoryMegabytes << 20,
+            hash => LoadFeatures(ctx, runPlan, featureFp, hash, pathOf[hash], cancel));
         var results = new PairRun[plan.Count];
-        Parallel.For(0, plan.Count, new ParallelOptions { MaxDegreeOfParallelism = ctx.Options.Service.MaxParallelJobs, CancellationToken = cancel }, k =>
+        Parallel.For(0, plan.Count, new ParallelOptions { MaxDegreeOfParallelism = runPlan.MaxParallelJobs, CancellationToken = cancel }, k =>
         {
             var (a, b) = (plan[k].A, plan[k].B);
             ctx.JobSlots.Wait(cancel);
@@ -94,14 +96,14 @@ public static class PairRunner
         return new PairRun(ia, ib, pa, sw.Elapsed.TotalMilliseconds, Reused: false);
     }
 
-    private static (ImageAnalysis, long) LoadFeatures(ProcessingContext ctx, ProfileSettings profile, string featureFp, string hash, string path, CancellationToken cancel)
+    private static (ImageAnalysis, long) LoadFeatures(ProcessingContext ctx, RunPlan runPlan, string featureFp, string hash, string path, CancellationToken cancel)
     {
         if (ctx.Cache.TryGet(hash, featureFp, out var analysis, out long bytes))
         {
             return (analysis, bytes);
         }
         // The entry vanished or was damaged since the image stage: analyse the file again (same features).
-        analysis = ctx.Engine.Analyze(path, profile.Features, ctx.Options.Limits, ctx.Budget, cancel);
+        analysis = ctx.Engine.Analyze(path, runPlan.Profile.Features, runPlan.Limits, ctx.Budget, cancel);
         byte[] encoded = ctx.Engine.Encode(analysis);
         ctx.Cache.Put(hash, featureFp, analysis);
         return (analysis, encoded.Length);

@@ -46,7 +46,7 @@ public sealed class PairStage(ProcessingContext ctx)
     private PairResult[] Estimate(SetRun run, List<AnalysedImage> good, PairPlan plan, bool report, CancellationToken cancel)
     {
         var pairImages = good.Select(g => new PairImage(g.Key, g.Hash!, g.File.FullPath)).ToList();
-        return PairRunner.Run(ctx, run.SetId, run.Profile, pairImages, plan.Pairs, reportEach: report, cancel)
+        return PairRunner.Run(ctx, run.Plan, run.SetId, pairImages, plan.Pairs, reportEach: report, cancel)
             .Select(r => new PairResult(r.A, r.B, r.Analysis, r.PairMs)).ToArray();
     }
 

@@ -9,7 +9,10 @@ namespace Seamwright.Pipeline.Processing;
 public sealed class ProcessingContext
 {
     public required string OutputRoot { get; init; }
-    /// <summary>Current settings; replaced on a configuration reload (reads are atomic reference loads).</summary>
+    /// <summary>
+    /// Current settings; replaced whole on a configuration reload (reads are atomic reference loads).
+    /// A set run never reads them after it began: it reads its <see cref="RunPlan"/> (<see cref="PlanFor"/>).
+    /// </summary>
     public required SeamwrightOptions Options { get; set; }
     public required StateStore Store { get; init; }
     public required ConfidenceLog Log { get; init; }
@@ -40,6 +43,9 @@ public sealed class ProcessingContext
 
     /// <summary>The algorithm version recorded in outputs and fingerprinted: pipeline and engine versions.</summary>
     public int AlgorithmVersion => PipelineVersion * 1000 + Engine.AlgorithmVersion;
+
+    /// <summary>The run plan of a set of this profile under the current settings: resolved once at the start of each run.</summary>
+    public RunPlan PlanFor(string profile) => RunPlan.Resolve(Options, profile, Engine.Name, AlgorithmVersion);
 
     public string FingerprintFor(string profile) =>
         SettingsFingerprint.ForSet(Options.Profile(profile), Options.Limits, Engine.Name, AlgorithmVersion);

@@ -74,14 +74,13 @@ public sealed class SetProcessor(ProcessingContext ctx)
         return _publisher.Publish(run, images, pairs, aligned);
     }
 
-    /// <summary>Resolves the profile and fingerprint once and opens the run in the ledger.</summary>
+    /// <summary>Resolves the run plan once (the settings as they are now) and opens the run in the ledger.</summary>
     private SetRun Begin(SetInputs set, bool incomplete)
     {
-        var profile = ctx.Options.Profile(set.Profile);
-        string fingerprint = ctx.FingerprintFor(set.Profile);
-        long runId = ctx.Store.BeginRun(set.SetId, set.Profile, fingerprint, ProcessingContext.ToolVersion, ctx.NodeName);
+        var plan = ctx.PlanFor(set.Profile);
+        long runId = ctx.Store.BeginRun(set.SetId, set.Profile, plan.Fingerprint, ProcessingContext.ToolVersion, ctx.NodeName);
         ctx.Observer.SetStarted(set.SetId, runId, set.Files.Count);
-        return new SetRun(set, runId, profile, fingerprint, incomplete);
+        return new SetRun(set, runId, plan, incomplete);
     }
 
     private SetOutcome Finished(SetOutcome outcome)

@@ -5,11 +5,15 @@ namespace Seamwright.Pipeline.Processing;
 
 /// <summary>
 /// One run of one set as every stage sees it: the set's inputs, the ledger's run id, and the
-/// profile and fingerprint resolved once when the run began (never re-read from live settings).
+/// <see cref="RunPlan"/> resolved once when the run began (stages never read live settings).
 /// </summary>
-public sealed record SetRun(SetInputs Set, long RunId, ProfileSettings Profile, string Fingerprint, bool Incomplete)
+public sealed record SetRun(SetInputs Set, long RunId, RunPlan Plan, bool Incomplete)
 {
     public string SetId => Set.SetId;
+
+    public ProfileSettings Profile => Plan.Profile;
+
+    public string Fingerprint => Plan.Fingerprint;
 }
 
 /// <summary>A file of a set that changed or vanished during its run: the run describes nothing real and is abandoned.</summary>

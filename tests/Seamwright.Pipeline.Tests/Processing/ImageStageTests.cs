@@ -56,5 +56,5 @@ public class ImageStageTests
     }
 
     private static SetRun StageRun(RootSession session, Seamwright.Pipeline.Sets.SetInputs set) =>
-        new(set, 1, session.Context.Options.Profile(set.Profile), "fp", false);
+        new(set, 1, session.Context.PlanFor(set.Profile), false);
 }

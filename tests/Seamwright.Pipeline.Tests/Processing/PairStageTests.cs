@@ -46,7 +46,7 @@ public class PairStageTests
     private static (SetRun Run, AnalysedImage[] Images) Analysed(RootSession session, ProfileSettings profile)
     {
         var set = session.Catalog.Discover().Single();
-        var run = new SetRun(set, 1, profile, "fp", false);
+        var run = new SetRun(set, 1, StageInputs.Plan(profile), false);
         return (run, new ImageStage(session.Context).Run(run, CancellationToken.None));
     }
 

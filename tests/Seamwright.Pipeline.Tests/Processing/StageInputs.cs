@@ -24,7 +24,12 @@ internal static class StageInputs
     };
 
     public static SetRun Run(IEnumerable<AnalysedImage> images, ProfileSettings? profile = null, bool incomplete = false) =>
-        new(new SetInputs("s", "default", images.Select(i => i.File).ToList(), false), 7, profile ?? new ProfileSettings(), "fp0123", incomplete);
+        new(new SetInputs("s", "default", images.Select(i => i.File).ToList(), false), 7, Plan(profile ?? new ProfileSettings()), incomplete);
+
+    public static RunPlan Plan(ProfileSettings profile) => new()
+    {
+        ProfileName = "default", Profile = profile, Limits = new LimitSettings(), MaxParallelJobs = 2, FeatureMemoryMegabytes = 64, Fingerprint = "fp0123",
+    };
 
     /// <summary>Pairs (i, i+1) estimated by the checksum engine (identity, accepted); <paramref name="rejected"/> lists pair indices turned rejected.</summary>
     public static PairStageResult Chain(IReadOnlyList<AnalysedImage> good, params int[] rejected)
