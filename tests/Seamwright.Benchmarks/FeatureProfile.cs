@@ -106,8 +106,8 @@ internal static class FeatureProfile
             Candidates += found.Count;
             var corners = CornerDetector.SpreadPick(found, w, h, budgets[k], options.CellSize);
             t["pick"] += Lap(ref c);
-            var smoothed = GaussianSmoother.Smooth(level.Pixels, w, h, DescriptorPatternGenerator.SmoothingSigma,
-                DescriptorPatternGenerator.SmoothingRadius);
+            var smoothed = GaussianSmoother.Smooth(level.Pixels, w, h, DescriptorPattern.SmoothingSigma,
+                DescriptorPattern.SmoothingRadius);
             t["smooth"] += Lap(ref c);
             var angles = new float[corners.Count];
             for (int i = 0; i < corners.Count; i++)

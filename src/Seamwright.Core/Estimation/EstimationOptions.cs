@@ -11,7 +11,7 @@ public sealed record EstimationOptions
 {
     public static EstimationOptions Default { get; } = new();
 
-    /// <summary>Motion model family. Default homography (DESIGN.md stage 6).</summary>
+    /// <summary>Motion model family. Default homography (docs/DESIGN.md stage 6).</summary>
     public MotionModel Model { get; init; } = MotionModel.Homography;
 
     /// <summary>
@@ -23,7 +23,7 @@ public sealed record EstimationOptions
     /// <summary>Seed of the pair's sampling (derive per pair with <see cref="PairSeed.Derive"/>). Default 1.</summary>
     public ulong Seed { get; init; } = 1;
 
-    /// <summary>Run the deterministic consensus refinement (DESIGN.md stage 7). Default on.</summary>
+    /// <summary>Run the deterministic consensus refinement (docs/DESIGN.md stage 7). Default on.</summary>
     public bool Refine { get; init; } = true;
 
     /// <summary>Refinement settings (polygon sides, LP cap).</summary>

@@ -15,7 +15,7 @@ public sealed record PolishResult(Transform2D Transform, int[] InlierIndices, do
 }
 
 /// <summary>
-/// Final polish (DESIGN.md stage 8): Levenberg-Marquardt on the forward transfer error of the
+/// Final polish (docs/DESIGN.md stage 8): Levenberg-Marquardt on the forward transfer error of the
 /// consensus set, re-select the inliers at the threshold with the same forward test the
 /// refiner counts, repeat until the set is stable or the round cap is reached.
 /// Least squares over a fixed inlier set ignores the threshold: it recentres the model on the

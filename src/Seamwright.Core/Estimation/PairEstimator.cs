@@ -5,7 +5,7 @@ using Seamwright.Core.Quality;
 namespace Seamwright.Core.Estimation;
 
 /// <summary>
-/// Pairwise transform from tentative matches (DESIGN.md stages 6-9): seeded sampling with local
+/// Pairwise transform from tentative matches (docs/DESIGN.md stages 6-9): seeded sampling with local
 /// optimisation, deterministic consensus refinement, final polish, runner-up search and decision.
 /// Each stage is also public so a caller can re-polish on re-localised tie points.
 /// Deterministic: same matches, sizes and options give bit-identical results (timings aside).

@@ -55,8 +55,8 @@ public static class OrientedCornerExtractor
             {
                 continue;
             }
-            var smoothed = GaussianSmoother.Smooth(levelImage.Pixels, w, h, DescriptorPatternGenerator.SmoothingSigma,
-                DescriptorPatternGenerator.SmoothingRadius);
+            var smoothed = GaussianSmoother.Smooth(levelImage.Pixels, w, h, DescriptorPattern.SmoothingSigma,
+                DescriptorPattern.SmoothingRadius);
             foreach (var c in corners)
             {
                 int cx = (int)MathF.Round(c.X), cy = (int)MathF.Round(c.Y);

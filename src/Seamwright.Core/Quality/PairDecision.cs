@@ -22,7 +22,7 @@ public sealed record PairEvidence(
 public sealed record PairVerdict(PairStatus Status, string[] Reasons);
 
 /// <summary>
-/// Accepted / weak / rejected with reasons (DESIGN.md stage 9). Rejected: no model, a failed
+/// Accepted / weak / rejected with reasons (docs/DESIGN.md stage 9). Rejected: no model, a failed
 /// sanity check, or fewer than minimum + 4 inliers. Weak: few inliers, a low inlier ratio, a close
 /// runner-up (repeated patterns) or a large corner uncertainty. Brown and Lowe's verification is
 /// reported as a remark only: its constants assume a tenth of false matches agree with a wrong

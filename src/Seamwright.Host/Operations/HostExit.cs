@@ -6,7 +6,7 @@ namespace Seamwright.Host.Operations;
 /// <summary>
 /// The exit code after the host stopped. An exception escaping a BackgroundService stops the host
 /// but leaves the process to exit 0, which a service manager reads as a clean stop and does not
-/// restart (dotnet/runtime#68165, #77381; RELIABILITY.md). So a faulted loop, or a fatal error a
+/// restart (dotnet/runtime#68165, #77381; docs/RELIABILITY.md). So a faulted loop, or a fatal error a
 /// loop reported, means exit 1.
 /// </summary>
 internal static class HostExit

@@ -8,7 +8,7 @@ internal sealed record WatcherState(string Root, long MissedEvents, int Recreate
 /// periodic rescan finds (a file added or replaced) is a suspect; the watcher reporting that path
 /// (its event may still be in flight) clears it. A suspect still unreported after the grace
 /// period is a missed event: the watcher of that root went deaf (buffer overflow, dead inotify
-/// thread, dropped share: RELIABILITY.md), so it is recreated; the rescan already picked the
+/// thread, dropped share: docs/RELIABILITY.md), so it is recreated; the rescan already picked the
 /// change up. Thread-safe; the clock is injected.
 /// </summary>
 internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvider time, TimeSpan grace)

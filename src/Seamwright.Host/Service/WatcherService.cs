@@ -7,7 +7,7 @@ namespace Seamwright.Host.Service;
 /// Watches every root with a FileSystemWatcher whose events are only hints (pushed O(1) into a
 /// bounded channel). On a watcher error the watcher is recreated and a full rescan requested;
 /// full rescans are also requested periodically, because events can be lost (buffer overflow,
-/// network shares, a stopped inotify thread: see RELIABILITY.md); changes such a rescan finds
+/// network shares, a stopped inotify thread: see docs/RELIABILITY.md); changes such a rescan finds
 /// that no event reported make the scheduler recreate that watcher (MissedEventDetector).
 /// Nothing is ever written into a watched root.
 /// </summary>

@@ -11,7 +11,7 @@ namespace Seamwright.Pipeline.Analysis;
 public sealed record GrayPixels(int Width, int Height, byte[] Pixels, DateTimeOffset? CaptureTime);
 
 /// <summary>
-/// Decodes an image to 8-bit gray with the limits of RELIABILITY.md checked first: file size, a
+/// Decodes an image to 8-bit gray with the limits of docs/RELIABILITY.md checked first: file size, a
 /// header-only identify, a pixel budget, and a reservation in the shared memory budget. Any
 /// decoder exception becomes an <see cref="ImageRejectedException"/> with the reason.
 /// </summary>

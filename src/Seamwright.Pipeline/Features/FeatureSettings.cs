@@ -11,7 +11,7 @@ public sealed record FeatureSettings
 {
     public static FeatureSettings Default { get; } = new();
 
-    /// <summary>Pixels of the working copy corners are detected on (DESIGN.md stage 1: about 2 megapixels).</summary>
+    /// <summary>Pixels of the working copy corners are detected on (docs/DESIGN.md stage 1: about 2 megapixels).</summary>
     public long WorkingPixelBudget { get; init; } = 2_000_000;
 
     /// <summary>Corner detector and pyramid.</summary>

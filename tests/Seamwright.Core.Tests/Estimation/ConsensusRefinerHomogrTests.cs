@@ -43,7 +43,7 @@ public class ConsensusRefinerHomogrTests(ITestOutputHelper output)
         }
         output.WriteLine($"total {totalBefore} -> {totalAfter}, {totalLps} LPs ({HomogrSet.Source})");
         output.WriteLine($"from the project sampler: total {projectBefore} -> {projectAfter}");
-        // The refinement must add consensus over the set; DESIGN.md's probe measured 1722 -> 1804.
+        // The refinement must add consensus over the set; docs/DESIGN.md's probe measured 1722 -> 1804.
         Assert.True(totalAfter > totalBefore, $"total {totalBefore} -> {totalAfter}");
     }
 }

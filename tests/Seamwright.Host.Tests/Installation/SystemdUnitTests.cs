@@ -10,7 +10,7 @@ public class SystemdUnitTests(ITestOutputHelper output)
 {
     private static string UnitPath => Path.Combine(RepoPaths.Root, "config", "seamwright.service");
 
-    /// <summary>HostOptions.ShutdownTimeout default (RELIABILITY.md, "Generic Host").</summary>
+    /// <summary>HostOptions.ShutdownTimeout default (docs/RELIABILITY.md, "Generic Host").</summary>
     private static readonly TimeSpan HostShutdownTimeout = TimeSpan.FromSeconds(30);
 
     [Fact]

@@ -11,7 +11,7 @@ namespace Seamwright.Host.Tests.Supervision;
 
 /// <summary>
 /// Hostile and valid inputs made by the tests themselves. The hostile ones follow the failure
-/// modes listed in RELIABILITY.md (GHSA-wmxv-xphr-5c9g BigTIFF entry count, ImageSharp#3074
+/// modes listed in docs/RELIABILITY.md (GHSA-wmxv-xphr-5c9g BigTIFF entry count, ImageSharp#3074
 /// BMP pixel offset), built from the format specifications (TIFF 6.0 / BigTIFF, BMP
 /// BITMAPFILEHEADER, PNG ISO/IEC 15948 IHDR, JPEG ITU T.81 markers).
 /// </summary>

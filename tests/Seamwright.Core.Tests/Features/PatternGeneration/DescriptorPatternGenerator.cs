@@ -6,7 +6,7 @@ using System.Text;
 namespace Seamwright.Core.Features;
 
 /// <summary>
-/// Generates Seamwright's descriptor sampling pattern offline (the result is embedded in
+/// Offline tool, kept with the tests (not shipped): generates Seamwright's descriptor sampling pattern (the result is embedded in
 /// <see cref="DescriptorPatternTable"/>). Method after the learned test selection of Rublee,
 /// Rabaud, Konolige, Bradski ("ORB: an efficient alternative to SIFT or SURF", ICCV 2011):
 /// candidate point pairs in a disc are evaluated on oriented, smoothed training patches taken at
@@ -22,8 +22,8 @@ public static class DescriptorPatternGenerator
     public const int TrainingImages = 32;
     public const int TrainingImageSize = 160;
     public const int PatchesPerImage = 100;
-    public const double SmoothingSigma = 2.0;
-    public const int SmoothingRadius = 4;
+    public const double SmoothingSigma = DescriptorPattern.SmoothingSigma;
+    public const int SmoothingRadius = DescriptorPattern.SmoothingRadius;
     public const double InitialCorrelationBound = 0.2;
     public const double CorrelationStep = 0.025;
 
