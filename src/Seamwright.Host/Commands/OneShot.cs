@@ -19,28 +19,11 @@ internal static class OneShot
 {
     public static int Execute(OneShotRequest req)
     {
-        SeamwrightOptions options;
-        try
+        if (ReadSettings(req, out var options, out var root) is int bad)
         {
-            options = SettingsLoader.Bind(SettingsLoader.Build(req.ConfigFile, req.Overrides));
+            return bad;
         }
-        catch (SettingsException e)
-        {
-            System.Console.Error.WriteLine("seamwright: " + e.Message);
-            return ExitCodes.BadArguments;
-        }
-        if (!Directory.Exists(req.Folder))
-        {
-            System.Console.Error.WriteLine($"seamwright: the folder {req.Folder} does not exist");
-            return ExitCodes.BadArguments;
-        }
-        var root = options.RootFor(req.Folder, req.Output is null ? null : Path.GetFullPath(req.Output));
         string output = root.EffectiveOutput;
-        if (IsUnder(Path.GetFullPath(req.Folder), output) )
-        {
-            System.Console.Error.WriteLine($"seamwright: the output folder {output} cannot contain the input folder");
-            return ExitCodes.BadArguments;
-        }
         IPairEngine engine;
         try
         {
@@ -82,26 +65,10 @@ internal static class OneShot
                 System.Console.Error.WriteLine($"seamwright: no set found under {req.Within}");
                 return ExitCodes.BadArguments;
             }
-            var todo = new List<(SetInputs Set, string Why)>();
-            foreach (var s in sets)
-            {
-                string? why = req.Force ? "forced" : WhyRedo(session.Context, s);
-                if (why is not null)
-                {
-                    todo.Add((s, why));
-                }
-            }
+            var todo = ToRedo(session, sets, req.Force);
             if (req.DryRun)
             {
-                System.Console.Out.WriteLine(todo.Count == 0
-                    ? $"Nothing would be redone: all {sets.Count} sets are up to date."
-                    : $"{todo.Count} of {sets.Count} sets would be redone:");
-                foreach (var (s, why) in todo)
-                {
-                    var count = PairRedoPreview.Count(session.Context, s);
-                    System.Console.Out.WriteLine($"  {s.SetId}\t{why}; {count.ToEstimate} of {count.Planned} pairs would be estimated"
-                        + (count.NotAnalysed > 0 ? $" ({count.NotAnalysed} images not analysed yet)" : ""));
-                }
+                PrintDryRun(session, sets.Count, todo);
                 return ExitCodes.Ok;
             }
             if (todo.Count == 0)
@@ -121,6 +88,62 @@ internal static class OneShot
             int code = Summarize(session, sets, outcomes, started.Elapsed, output);
             log.Information("Run finished in {Seconds:0.0} s with exit code {Code}", started.Elapsed.TotalSeconds, code);
             return code;
+        }
+    }
+
+    /// <summary>Binds and validates the settings and checks the folders; an exit code when something is wrong, else null.</summary>
+    private static int? ReadSettings(OneShotRequest req, out SeamwrightOptions options, out RootSettings root)
+    {
+        options = null!;
+        root = null!;
+        try
+        {
+            options = SettingsLoader.Bind(SettingsLoader.Build(req.ConfigFile, req.Overrides));
+        }
+        catch (SettingsException e)
+        {
+            System.Console.Error.WriteLine("seamwright: " + e.Message);
+            return ExitCodes.BadArguments;
+        }
+        if (!Directory.Exists(req.Folder))
+        {
+            System.Console.Error.WriteLine($"seamwright: the folder {req.Folder} does not exist");
+            return ExitCodes.BadArguments;
+        }
+        root = options.RootFor(req.Folder, req.Output is null ? null : Path.GetFullPath(req.Output));
+        if (IsUnder(Path.GetFullPath(req.Folder), root.EffectiveOutput))
+        {
+            System.Console.Error.WriteLine($"seamwright: the output folder {root.EffectiveOutput} cannot contain the input folder");
+            return ExitCodes.BadArguments;
+        }
+        return null;
+    }
+
+    /// <summary>The sets that must be (re)done, with why in words (all of them when forced).</summary>
+    private static List<(SetInputs Set, string Why)> ToRedo(RootSession session, IReadOnlyList<SetInputs> sets, bool force)
+    {
+        var todo = new List<(SetInputs Set, string Why)>();
+        foreach (var s in sets)
+        {
+            string? why = force ? "forced" : WhyRedo(session.Context, s);
+            if (why is not null)
+            {
+                todo.Add((s, why));
+            }
+        }
+        return todo;
+    }
+
+    private static void PrintDryRun(RootSession session, int sets, List<(SetInputs Set, string Why)> todo)
+    {
+        System.Console.Out.WriteLine(todo.Count == 0
+            ? $"Nothing would be redone: all {sets} sets are up to date."
+            : $"{todo.Count} of {sets} sets would be redone:");
+        foreach (var (s, why) in todo)
+        {
+            var count = PairRedoPreview.Count(session.Context, s);
+            System.Console.Out.WriteLine($"  {s.SetId}\t{why}; {count.ToEstimate} of {count.Planned} pairs would be estimated"
+                + (count.NotAnalysed > 0 ? $" ({count.NotAnalysed} images not analysed yet)" : ""));
         }
     }
 

@@ -26,62 +26,11 @@ internal static class WatchCommand
 
     public static int Execute(string[] args)
     {
-        CommandArgs a;
-        IConfiguration config;
-        SeamwrightOptions options;
-        try
+        if (ReadSettings(args, out var a, out var options) is int bad)
         {
-            a = CommandArgs.Parse(args, ["--output", "--config"], []);
-            if (a.Positional.Count > 1)
-            {
-                return RunCommand.Bad("watch takes at most one ROOT: seamwright " + Usage);
-            }
-            config = SettingsLoader.Build(a.Value("--config"), a.Overrides.ToArray());
-            options = SettingsLoader.Bind(config);
-            ApplyCommandLineRoot(options, a);
-            if (options.Roots.Count == 0)
-            {
-                return RunCommand.Bad("no root to watch: configure Seamwright:Roots or give ROOT: seamwright " + Usage);
-            }
-            if (options.Roots.FirstOrDefault(r => !Directory.Exists(r.Path)) is { } missing)
-            {
-                return RunCommand.Bad($"the folder to watch does not exist: {Path.GetFullPath(missing.Path)}");
-            }
+            return bad;
         }
-        catch (SettingsException e)
-        {
-            return RunCommand.Bad(e.Message);
-        }
-
-        var builder = Microsoft.Extensions.Hosting.Host.CreateApplicationBuilder(new HostApplicationBuilderSettings
-        {
-            DisableDefaults = true,
-            ContentRootPath = AppContext.BaseDirectory,
-        });
-        builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
-        // Settings are bound and validated once, by SettingsLoader.Bind (above, and again on each
-        // reload): no IOptions<SeamwrightOptions> is registered, since nothing would read it. Each set
-        // run takes a RunPlan snapshot when it begins (docs/ARCHITECTURE.md), so a reload reaches
-        // only runs that begin after it.
-        builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
-        builder.Services.AddSystemd();
-        builder.Services.Configure<HostOptions>(o =>
-        {
-            o.ShutdownTimeout = TimeSpan.FromSeconds(options.Service.ShutdownSeconds);
-            o.BackgroundServiceExceptionBehavior = BackgroundServiceExceptionBehavior.StopHost;
-        });
-        var readerOptions = new ConfigurationReaderOptions(
-            typeof(ConsoleLoggerConfigurationExtensions).Assembly, typeof(FileLoggerConfigurationExtensions).Assembly,
-            typeof(Serilog.Formatting.Compact.CompactJsonFormatter).Assembly);
-        // A settings file without a Serilog section still logs to the console.
-        Log.Logger = builder.Configuration.GetSection("Serilog").Exists()
-            ? new LoggerConfiguration().ReadFrom.Configuration(builder.Configuration, readerOptions).CreateLogger()
-            : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
-                .WriteTo.Console().CreateLogger();
-        builder.Services.AddSerilog(Log.Logger, dispose: false);
-        string settingsFile = Path.GetFullPath(a.Value("--config") ?? SettingsLoader.DefaultConfigFile);
-        Log.Information("Settings file {File} ({State}); environment variables and command-line overrides win over it",
-            settingsFile, File.Exists(settingsFile) ? "read" : "absent: built-in defaults");
+        var builder = CreateBuilder(a, options);
 
         var sessions = new List<RootSession>();
         bool started = false;
@@ -97,20 +46,8 @@ internal static class WatchCommand
         }
         try
         {
-            var engine = EngineFactory.Create(options.Engine);
             using var loggerFactory = new Serilog.Extensions.Logging.SerilogLoggerFactory(Log.Logger);
-            var supervisionLog = loggerFactory.CreateLogger("Seamwright.Supervision");
-            var budget = new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20);
-            var slots = new SemaphoreSlim(options.Service.MaxParallelJobs);
-            var observer = new ServiceObserver(Log.Logger, ops.Metrics);
-            foreach (var root in options.Roots)
-            {
-                var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
-                session.Context.Review = new RigBaselineReview(loggerFactory.CreateLogger("Seamwright.RigBaseline"));
-                sessions.Add(session);
-                OneShot.Announce(session, Log.Logger);
-                Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);
-            }
+            OpenSessions(options, ops, loggerFactory, sessions);
             var runtime = new ServiceRuntime(sessions, options) { Ops = ops };
             builder.Services.AddSingleton(runtime);
             ops.AddTo(builder.Services, sessions.Select(s => Path.GetFullPath(s.Catalog.RootPath)).ToList(),
@@ -164,6 +101,90 @@ internal static class WatchCommand
             }
             Log.CloseAndFlush();
         }
+    }
+
+    /// <summary>Opens every root's session (ledger, output lock, engine under supervision) into <paramref name="sessions"/>, so a failure still disposes those opened.</summary>
+    private static void OpenSessions(SeamwrightOptions options, ServiceOperations ops, Microsoft.Extensions.Logging.ILoggerFactory loggerFactory, List<RootSession> sessions)
+    {
+        var engine = EngineFactory.Create(options.Engine);
+        var supervisionLog = loggerFactory.CreateLogger("Seamwright.Supervision");
+        var budget = new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20);
+        var slots = new SemaphoreSlim(options.Service.MaxParallelJobs);
+        var observer = new ServiceObserver(Log.Logger, ops.Metrics);
+        foreach (var root in options.Roots)
+        {
+            var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
+            session.Context.Review = new RigBaselineReview(loggerFactory.CreateLogger("Seamwright.RigBaseline"));
+            sessions.Add(session);
+            OneShot.Announce(session, Log.Logger);
+            Log.Information("Serving root {Root} into {Output}", root.Path, session.Context.OutputRoot);
+        }
+    }
+
+    /// <summary>Parses the arguments and binds and validates the settings; an exit code when they are bad, else null.</summary>
+    private static int? ReadSettings(string[] args, out CommandArgs a, out SeamwrightOptions options)
+    {
+        a = null!;
+        options = null!;
+        try
+        {
+            a = CommandArgs.Parse(args, ["--output", "--config"], []);
+            if (a.Positional.Count > 1)
+            {
+                return RunCommand.Bad("watch takes at most one ROOT: seamwright " + Usage);
+            }
+            var config = SettingsLoader.Build(a.Value("--config"), a.Overrides.ToArray());
+            options = SettingsLoader.Bind(config);
+            ApplyCommandLineRoot(options, a);
+            if (options.Roots.Count == 0)
+            {
+                return RunCommand.Bad("no root to watch: configure Seamwright:Roots or give ROOT: seamwright " + Usage);
+            }
+            if (options.Roots.FirstOrDefault(r => !Directory.Exists(r.Path)) is { } missing)
+            {
+                return RunCommand.Bad($"the folder to watch does not exist: {Path.GetFullPath(missing.Path)}");
+            }
+        }
+        catch (SettingsException e)
+        {
+            return RunCommand.Bad(e.Message);
+        }
+        return null;
+    }
+
+    /// <summary>The Generic Host builder: settings sources (reloading), service managers, shutdown, Serilog.</summary>
+    private static HostApplicationBuilder CreateBuilder(CommandArgs a, SeamwrightOptions options)
+    {
+        var builder = Microsoft.Extensions.Hosting.Host.CreateApplicationBuilder(new HostApplicationBuilderSettings
+        {
+            DisableDefaults = true,
+            ContentRootPath = AppContext.BaseDirectory,
+        });
+        builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
+        // Settings are bound and validated once, by SettingsLoader.Bind (above, and again on each
+        // reload): no IOptions<SeamwrightOptions> is registered, since nothing would read it. Each set
+        // run takes a RunPlan snapshot when it begins (docs/ARCHITECTURE.md), so a reload reaches
+        // only runs that begin after it.
+        builder.Services.AddWindowsService(o => o.ServiceName = "Seamwright");
+        builder.Services.AddSystemd();
+        builder.Services.Configure<HostOptions>(o =>
+        {
+            o.ShutdownTimeout = TimeSpan.FromSeconds(options.Service.ShutdownSeconds);
+            o.BackgroundServiceExceptionBehavior = BackgroundServiceExceptionBehavior.StopHost;
+        });
+        var readerOptions = new ConfigurationReaderOptions(
+            typeof(ConsoleLoggerConfigurationExtensions).Assembly, typeof(FileLoggerConfigurationExtensions).Assembly,
+            typeof(Serilog.Formatting.Compact.CompactJsonFormatter).Assembly);
+        // A settings file without a Serilog section still logs to the console.
+        Log.Logger = builder.Configuration.GetSection("Serilog").Exists()
+            ? new LoggerConfiguration().ReadFrom.Configuration(builder.Configuration, readerOptions).CreateLogger()
+            : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
+                .WriteTo.Console().CreateLogger();
+        builder.Services.AddSerilog(Log.Logger, dispose: false);
+        string settingsFile = Path.GetFullPath(a.Value("--config") ?? SettingsLoader.DefaultConfigFile);
+        Log.Information("Settings file {File} ({State}); environment variables and command-line overrides win over it",
+            settingsFile, File.Exists(settingsFile) ? "read" : "absent: built-in defaults");
+        return builder;
     }
 
     private static void ApplyCommandLineRoot(SeamwrightOptions options, CommandArgs a)

@@ -41,56 +41,7 @@ internal static class SettingsValidator
         }
         foreach (var (name, p) in o.Profiles)
         {
-            string k = $"{S}:Profiles:{name}";
-            Range(e, $"{k}:Pairing:NeighbourSpan", p.Pairing.NeighbourSpan, 2, 64, "images (at least 2 so that loops exist)");
-            Range(e, $"{k}:Pairing:AllMaxPartners", p.Pairing.AllMaxPartners, 1, 1000, "images");
-            Range(e, $"{k}:Pairing:AllMinSimilarity", p.Pairing.AllMinSimilarity, -1, 1, "(cosine)");
-            Regex(e, $"{k}:Pairing:GridPattern", p.Pairing.GridPattern, ["row", "col"]);
-            Range(e, $"{k}:RigLearnFromFirst", p.RigLearnFromFirst, 1, 100, "accepted results");
-            Range(e, $"{k}:RigTolerancePx", p.RigTolerancePx, 0.01, 10000, "px");
-            for (int i = 0; i < p.RigBaselines.Count; i++)
-            {
-                var b = p.RigBaselines[i];
-                if (b.Transform.Length != 9 || !b.Transform.All(double.IsFinite) || b.Transform[8] == 0 || b.CameraA == b.CameraB)
-                {
-                    e.Add($"{k}:RigBaselines:{i} ({b.CameraA} -> {b.CameraB}) is not usable; allowed: two different camera folders and a Transform of 9 finite numbers (3x3 row-major, A to B) with a non-zero last entry");
-                }
-            }
-            Range(e, $"{k}:Completion:QuietSeconds", p.Completion.QuietSeconds, 0, 86400, "seconds");
-            Range(e, $"{k}:Completion:ExpectedCount", p.Completion.ExpectedCount, 0, 1000000, "images (0 = not used)");
-            Range(e, $"{k}:Completion:MaxWaitSeconds", p.Completion.MaxWaitSeconds, 1, 31 * 86400, "seconds");
-            if (p.Completion.ReadyMarker.IndexOfAny(['/', '\\']) >= 0)
-            {
-                e.Add($"{k}:Completion:ReadyMarker is '{p.Completion.ReadyMarker}'; allowed: a file name without folders, or empty");
-            }
-            Range(e, $"{k}:Features:WorkingMegapixels", p.Features.WorkingMegapixels, 0.05, 100, "megapixels");
-            Range(e, $"{k}:Features:MaxKeypoints", p.Features.MaxKeypoints, 16, 100000, "keypoints");
-            for (int i = 0; i < p.Features.Masks.Count; i++)
-            {
-                var m = p.Features.Masks[i];
-                if (m.X < 0 || m.Y < 0 || m.Width <= 0 || m.Height <= 0 || m.X + m.Width > 1 || m.Y + m.Height > 1)
-                {
-                    e.Add($"{k}:Features:Masks:{i} is ({m.X}, {m.Y}, {m.Width}, {m.Height}); allowed: fractions of the image with X, Y >= 0, Width, Height > 0, X + Width <= 1, Y + Height <= 1");
-                }
-            }
-            Range(e, $"{k}:Estimation:ThresholdPx", p.Estimation.ThresholdPx, 0.1, 100, "pixels");
-            Range(e, $"{k}:Estimation:RatioTest", p.Estimation.RatioTest, 0.1, 1.0, "(ratio)");
-            Range(e, $"{k}:Estimation:Confidence", p.Estimation.Confidence, 0.5, 0.999999, "(probability)");
-            Range(e, $"{k}:Estimation:MaxIterations", p.Estimation.MaxIterations, 10, 10000000, "iterations");
-            Range(e, $"{k}:Alignment:RobustScalePx", p.Alignment.RobustScalePx, 0.1, 100, "pixels");
-            Range(e, $"{k}:Alignment:LinkResidualLimitPx", p.Alignment.LinkResidualLimitPx, 0.5, 1000, "pixels");
-            Range(e, $"{k}:Alignment:PreviewMaxSide", p.Alignment.PreviewMaxSide, 64, 8192, "pixels");
-            if (p.Alignment.ReferenceImage.Contains('/', StringComparison.Ordinal) || p.Alignment.ReferenceImage.Contains('\\', StringComparison.Ordinal))
-            {
-                e.Add($"{k}:Alignment:ReferenceImage is '{p.Alignment.ReferenceImage}'; allowed: a file name without folders, or empty (most connected image)");
-            }
-            foreach (var ext in p.Extensions)
-            {
-                if (!ext.StartsWith('.') || ext.Length < 2)
-                {
-                    e.Add($"{k}:Extensions contains '{ext}'; allowed: extensions with a leading dot, like \".jpg\"");
-                }
-            }
+            CheckProfile(e, $"{S}:Profiles:{name}", p);
         }
         for (int i = 0; i < o.Roots.Count; i++)
         {
@@ -98,6 +49,59 @@ internal static class SettingsValidator
         }
         CheckRoot(e, $"{S}:Run", o.Run, o, requirePath: false);
         return e;
+    }
+
+    private static void CheckProfile(List<string> e, string k, ProfileSettings p)
+    {
+        Range(e, $"{k}:Pairing:NeighbourSpan", p.Pairing.NeighbourSpan, 2, 64, "images (at least 2 so that loops exist)");
+        Range(e, $"{k}:Pairing:AllMaxPartners", p.Pairing.AllMaxPartners, 1, 1000, "images");
+        Range(e, $"{k}:Pairing:AllMinSimilarity", p.Pairing.AllMinSimilarity, -1, 1, "(cosine)");
+        Regex(e, $"{k}:Pairing:GridPattern", p.Pairing.GridPattern, ["row", "col"]);
+        Range(e, $"{k}:RigLearnFromFirst", p.RigLearnFromFirst, 1, 100, "accepted results");
+        Range(e, $"{k}:RigTolerancePx", p.RigTolerancePx, 0.01, 10000, "px");
+        for (int i = 0; i < p.RigBaselines.Count; i++)
+        {
+            var b = p.RigBaselines[i];
+            if (b.Transform.Length != 9 || !b.Transform.All(double.IsFinite) || b.Transform[8] == 0 || b.CameraA == b.CameraB)
+            {
+                e.Add($"{k}:RigBaselines:{i} ({b.CameraA} -> {b.CameraB}) is not usable; allowed: two different camera folders and a Transform of 9 finite numbers (3x3 row-major, A to B) with a non-zero last entry");
+            }
+        }
+        Range(e, $"{k}:Completion:QuietSeconds", p.Completion.QuietSeconds, 0, 86400, "seconds");
+        Range(e, $"{k}:Completion:ExpectedCount", p.Completion.ExpectedCount, 0, 1000000, "images (0 = not used)");
+        Range(e, $"{k}:Completion:MaxWaitSeconds", p.Completion.MaxWaitSeconds, 1, 31 * 86400, "seconds");
+        if (p.Completion.ReadyMarker.IndexOfAny(['/', '\\']) >= 0)
+        {
+            e.Add($"{k}:Completion:ReadyMarker is '{p.Completion.ReadyMarker}'; allowed: a file name without folders, or empty");
+        }
+        Range(e, $"{k}:Features:WorkingMegapixels", p.Features.WorkingMegapixels, 0.05, 100, "megapixels");
+        Range(e, $"{k}:Features:MaxKeypoints", p.Features.MaxKeypoints, 16, 100000, "keypoints");
+        for (int i = 0; i < p.Features.Masks.Count; i++)
+        {
+            var m = p.Features.Masks[i];
+            if (m.X < 0 || m.Y < 0 || m.Width <= 0 || m.Height <= 0 || m.X + m.Width > 1 || m.Y + m.Height > 1)
+            {
+                e.Add($"{k}:Features:Masks:{i} is ({m.X}, {m.Y}, {m.Width}, {m.Height}); allowed: fractions of the image with X, Y >= 0, Width, Height > 0, X + Width <= 1, Y + Height <= 1");
+            }
+        }
+        Range(e, $"{k}:Estimation:ThresholdPx", p.Estimation.ThresholdPx, 0.1, 100, "pixels");
+        Range(e, $"{k}:Estimation:RatioTest", p.Estimation.RatioTest, 0.1, 1.0, "(ratio)");
+        Range(e, $"{k}:Estimation:Confidence", p.Estimation.Confidence, 0.5, 0.999999, "(probability)");
+        Range(e, $"{k}:Estimation:MaxIterations", p.Estimation.MaxIterations, 10, 10000000, "iterations");
+        Range(e, $"{k}:Alignment:RobustScalePx", p.Alignment.RobustScalePx, 0.1, 100, "pixels");
+        Range(e, $"{k}:Alignment:LinkResidualLimitPx", p.Alignment.LinkResidualLimitPx, 0.5, 1000, "pixels");
+        Range(e, $"{k}:Alignment:PreviewMaxSide", p.Alignment.PreviewMaxSide, 64, 8192, "pixels");
+        if (p.Alignment.ReferenceImage.Contains('/', StringComparison.Ordinal) || p.Alignment.ReferenceImage.Contains('\\', StringComparison.Ordinal))
+        {
+            e.Add($"{k}:Alignment:ReferenceImage is '{p.Alignment.ReferenceImage}'; allowed: a file name without folders, or empty (most connected image)");
+        }
+        foreach (var ext in p.Extensions)
+        {
+            if (!ext.StartsWith('.') || ext.Length < 2)
+            {
+                e.Add($"{k}:Extensions contains '{ext}'; allowed: extensions with a leading dot, like \".jpg\"");
+            }
+        }
     }
 
     private static void CheckRoot(List<string> e, string k, RootSettings r, SeamwrightOptions o, bool requirePath)

@@ -78,6 +78,32 @@ internal sealed class OperationsLoop(
         });
         Last = figures;
 
+        Announce(report, figures);
+        if (figures.RejectionDrift is { } drift && drift != _lastDrift)
+        {
+            logger.LogWarning("Rejection drift: {Drift}", drift);
+        }
+        _lastDrift = figures.RejectionDrift;
+
+        if (now >= _nextFiguresLog)
+        {
+            LogFigures(figures);
+            _nextFiguresLog = now + TimeSpan.FromSeconds(options.FiguresLogSeconds);
+        }
+        if (retention is not null && now >= _nextRetention)
+        {
+            _nextRetention = now + TimeSpan.FromHours(options.RetentionSweepHours);
+            foreach (string line in retention.Sweep(now))
+            {
+                logger.LogInformation("Retention: {Line}", line);
+            }
+        }
+        return figures;
+    }
+
+    /// <summary>While healthy: watchdog, status and heartbeat files; a change of health is logged once.</summary>
+    private void Announce(HealthReport report, OperationsFigures figures)
+    {
         if (report.Healthy)
         {
             notifier?.Notify("WATCHDOG=1");
@@ -107,26 +133,6 @@ internal sealed class OperationsLoop(
             }
             _lastProblems = joined;
         }
-        if (figures.RejectionDrift is { } drift && drift != _lastDrift)
-        {
-            logger.LogWarning("Rejection drift: {Drift}", drift);
-        }
-        _lastDrift = figures.RejectionDrift;
-
-        if (now >= _nextFiguresLog)
-        {
-            LogFigures(figures);
-            _nextFiguresLog = now + TimeSpan.FromSeconds(options.FiguresLogSeconds);
-        }
-        if (retention is not null && now >= _nextRetention)
-        {
-            _nextRetention = now + TimeSpan.FromHours(options.RetentionSweepHours);
-            foreach (string line in retention.Sweep(now))
-            {
-                logger.LogInformation("Retention: {Line}", line);
-            }
-        }
-        return figures;
     }
 
     /// <summary>

@@ -34,77 +34,12 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 ops?.Health.Beat(LoopName);
                 try
                 {
-                    var rescan = runtime.TakeRescanRequest();
-                    while (runtime.Hints.Reader.TryRead(out var hint))
-                    {
-                        if (hint.Path is null || !trackers[hint.Root].ApplyHint(hint.Path, now))
-                        {
-                            rescan = RescanKind.Requested;
-                        }
-                    }
-                    if (rescan != RescanKind.None)
-                    {
-                        foreach (var t in trackers)
-                        {
-                            var found = t.Rescan(now);
-                            if (rescan == RescanKind.Periodic)
-                            {
-                                found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
-                            }
-                        }
-                    }
+                    Rescan(trackers, now, ops);
                     RecreateSilentWatchers(trackers);
-                    if (runtime.SettingsChanged)
-                    {
-                        runtime.SettingsChanged = false;
-                        foreach (var t in trackers)
-                        {
-                            int n = t.ApplySettingsChange(now);
-                            LogSettingsChanged(log, t.Session.Catalog.RootPath, n);
-                        }
-                    }
-                    while (runtime.Results.Reader.TryRead(out var result))
-                    {
-                        var key = (result.Root, result.Outcome.SetId);
-                        if (_busy.Remove(key, out var job))
-                        {
-                            if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
-                                && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
-                            {
-                                ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
-                            }
-                            trackers[result.Root].Finished(job, result.Outcome, now);
-                        }
-                    }
-                    foreach (var t in trackers)
-                    {
-                        t.Relook(now, opts.StableSeconds);
-                        // Below the free-space threshold no new set is taken; sets in progress finish.
-                        if (pending.Count == 0 && ops?.Disk?.Paused != true && !runtime.LedgerDown)
-                        {
-                            foreach (var job in t.Ready(now, opts.StableSeconds))
-                            {
-                                t.Queued(job.Set.SetId);
-                                _busy[(job.Root, job.Set.SetId)] = job;
-                                pending.Enqueue(job);
-                                LogReady(log, job.Set.SetId, job.Set.Files.Count, job.Incomplete);
-                            }
-                        }
-                    }
-                    while (pending.Count > 0 && runtime.Jobs.Writer.TryWrite(pending.Peek()))
-                    {
-                        var sent = pending.Dequeue();
-                        trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
-                    }
-                    if (ops is not null)
-                    {
-                        ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
-                        ops.PublishWaiting(WaitingSets(trackers, now, opts.StableSeconds));
-                        if (round++ % 20 == 0)
-                        {
-                            ops.PublishStuck(StuckSets(trackers, now));
-                        }
-                    }
+                    ApplySettingsChange(trackers, now);
+                    TakeResults(trackers, now, ops);
+                    Schedule(trackers, pending, now, opts, ops);
+                    Publish(trackers, pending, now, opts, ops, round++);
                 }
                 catch (System.Data.Common.DbException e) when (runtime.Roots.Any(r => r.Context.Store.IsShared))
                 {
@@ -135,6 +70,99 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
         finally
         {
             runtime.Jobs.Writer.TryComplete();
+        }
+    }
+
+    /// <summary>Applies the watcher's hints; a rescan when asked for or when a hint cannot be applied on its own.</summary>
+    private void Rescan(List<RootTracker> trackers, DateTime now, ServiceOperations? ops)
+    {
+        var rescan = runtime.TakeRescanRequest();
+        while (runtime.Hints.Reader.TryRead(out var hint))
+        {
+            if (hint.Path is null || !trackers[hint.Root].ApplyHint(hint.Path, now))
+            {
+                rescan = RescanKind.Requested;
+            }
+        }
+        if (rescan != RescanKind.None)
+        {
+            foreach (var t in trackers)
+            {
+                var found = t.Rescan(now);
+                if (rescan == RescanKind.Periodic)
+                {
+                    found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
+                }
+            }
+        }
+    }
+
+    private void ApplySettingsChange(List<RootTracker> trackers, DateTime now)
+    {
+        if (!runtime.SettingsChanged)
+        {
+            return;
+        }
+        runtime.SettingsChanged = false;
+        foreach (var t in trackers)
+        {
+            int n = t.ApplySettingsChange(now);
+            LogSettingsChanged(log, t.Session.Catalog.RootPath, n);
+        }
+    }
+
+    private void TakeResults(List<RootTracker> trackers, DateTime now, ServiceOperations? ops)
+    {
+        while (runtime.Results.Reader.TryRead(out var result))
+        {
+            var key = (result.Root, result.Outcome.SetId);
+            if (_busy.Remove(key, out var job))
+            {
+                if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
+                    && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
+                {
+                    ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
+                }
+                trackers[result.Root].Finished(job, result.Outcome, now);
+            }
+        }
+    }
+
+    /// <summary>Takes the sets that became ready (none while intake is paused) and hands the queue to the workers.</summary>
+    private void Schedule(List<RootTracker> trackers, Queue<SetJob> pending, DateTime now, Pipeline.Settings.ServiceSettings opts, ServiceOperations? ops)
+    {
+        foreach (var t in trackers)
+        {
+            t.Relook(now, opts.StableSeconds);
+            // Below the free-space threshold no new set is taken; sets in progress finish.
+            if (pending.Count == 0 && ops?.Disk?.Paused != true && !runtime.LedgerDown)
+            {
+                foreach (var job in t.Ready(now, opts.StableSeconds))
+                {
+                    t.Queued(job.Set.SetId);
+                    _busy[(job.Root, job.Set.SetId)] = job;
+                    pending.Enqueue(job);
+                    LogReady(log, job.Set.SetId, job.Set.Files.Count, job.Incomplete);
+                }
+            }
+        }
+        while (pending.Count > 0 && runtime.Jobs.Writer.TryWrite(pending.Peek()))
+        {
+            var sent = pending.Dequeue();
+            trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
+        }
+    }
+
+    private void Publish(List<RootTracker> trackers, Queue<SetJob> pending, DateTime now, Pipeline.Settings.ServiceSettings opts, ServiceOperations? ops, int round)
+    {
+        if (ops is not null)
+        {
+            ops.QueueDepth = pending.Count + runtime.Jobs.Reader.Count;
+            ops.PublishWaiting(WaitingSets(trackers, now, opts.StableSeconds));
+            if (round % 20 == 0)
+            {
+                ops.PublishStuck(StuckSets(trackers, now));
+            }
         }
     }
 
