@@ -132,9 +132,32 @@ public static class PairPlanner
     /// <summary>
     /// Every pair would be n(n-1)/2 estimates; a cheap pre-filter ranks partners by the cosine of the
     /// coarse signatures and keeps, for each image, its best <c>AllMaxPartners</c> above
-    /// <c>AllMinSimilarity</c> (a pair kept by either image is estimated).
+    /// <c>AllMinSimilarity</c> (a pair kept by either image is estimated). Above 64 images the
+    /// partners come from a <see cref="CoarseIndex"/> (same partners, far fewer comparisons).
     /// </summary>
     private static PairPlan All(PairingSettings s, IReadOnlyList<PlanImage> images)
+    {
+        // The index gives the same partners; it needs a positive floor and no empty signature (judgement: below 64 images the scan is cheaper).
+        if (images.Count <= 64 || s.AllMinSimilarity <= 0 || images.Any(i => !i.Coarse.Any(v => v != 0)))
+        {
+            return AllByFullScan(s, images);
+        }
+        var signatures = images.Select(i => i.Coarse).ToList();
+        var index = new CoarseIndex(signatures);
+        var keep = new HashSet<(int, int)>();
+        for (int i = 0; i < images.Count; i++)
+        {
+            foreach (int j in index.Best(i, s.AllMaxPartners, s.AllMinSimilarity, signatures))
+            {
+                keep.Add((Math.Min(i, j), Math.Max(i, j)));
+            }
+        }
+        var pairs = keep.OrderBy(p => p.Item1).ThenBy(p => p.Item2).Select(p => new PlannedPair(p.Item1, p.Item2)).ToList();
+        return new PairPlan(pairs, []);
+    }
+
+    /// <summary>The same rule by comparing every image with every other (n (n - 1) comparisons).</summary>
+    internal static PairPlan AllByFullScan(PairingSettings s, IReadOnlyList<PlanImage> images)
     {
         int n = images.Count;
         var keep = new HashSet<(int, int)>();
