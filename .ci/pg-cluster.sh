@@ -19,7 +19,8 @@ as_owner() {
 case "$cmd" in
   start)
     mkdir -p "$dir"
-    if [ "$(id -u)" = 0 ]; then chown postgres "$dir"; fi
+    # As root the server runs as `postgres`: it must be able to pass through the parent folder.
+    if [ "$(id -u)" = 0 ]; then chown postgres "$dir"; chmod a+x "$(dirname "$dir")"; fi
     chmod 700 "$dir"
     if [ ! -f "$dir/PG_VERSION" ]; then
       as_owner "$bin/initdb" -D "$dir" -U postgres --auth=trust --encoding=UTF8 --no-sync >"$dir.initdb.log" 2>&1 \
