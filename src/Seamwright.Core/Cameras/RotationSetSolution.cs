@@ -30,7 +30,7 @@ public sealed record CameraPose(int Index, Matrix3 Rotation, double FocalPx, dou
 }
 
 /// <summary>Tie-point residuals of a rotation set, in pixels (focal length times the angle between the two rays).</summary>
-public sealed record RotationResiduals(int TiePoints, double InitialRmsPx, double RmsPx, double MedianPx, double MaxPx, int Iterations);
+public sealed record RotationResiduals(int TiePoints, int Links, double InitialRmsPx, double RmsPx, double MedianPx, double MaxPx, int Iterations);
 
 /// <summary>A link left out of the rotation set, with the reason.</summary>
 public sealed record LeftOutLink(int ImageA, int ImageB, string Reason);

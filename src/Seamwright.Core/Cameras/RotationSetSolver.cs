@@ -150,9 +150,9 @@ public static class RotationSetSolver
         var all = Enumerable.Range(0, links).SelectMany(l => bundle.LinkResiduals(state, l)).ToList();
         if (all.Count == 0)
         {
-            return new RotationResiduals(0, 0, 0, 0, 0, iterations);
+            return new RotationResiduals(0, links, 0, 0, 0, 0, iterations);
         }
-        return new RotationResiduals(all.Count, initialRms, Math.Sqrt(all.Sum(r => r * r) / all.Count), RotationStart.Median(all), all.Max(), iterations);
+        return new RotationResiduals(all.Count, links, initialRms, Math.Sqrt(all.Sum(r => r * r) / all.Count), RotationStart.Median(all), all.Max(), iterations);
     }
 
     /// <summary>Largest connected component of the links (ties: the one holding the lowest index) and its reference.</summary>

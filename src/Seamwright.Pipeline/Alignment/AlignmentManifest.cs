@@ -43,6 +43,9 @@ public sealed record ManifestAlignment
 
     public required string[] NonPlanarReasons { get; init; }
 
+    /// <summary>The set model used and why (rotation sets add focal lengths, extent, projection and levelling).</summary>
+    public ManifestSetModel? SetModel { get; init; }
+
     public static ManifestAlignment From(SetAlignment alignment, IReadOnlyList<string> names)
     {
         ArgumentNullException.ThrowIfNull(alignment);

@@ -1,4 +1,5 @@
 using Seamwright.Core.Alignment;
+using Seamwright.Core.Cameras;
 
 namespace Seamwright.Pipeline.Alignment;
 
@@ -16,6 +17,15 @@ public sealed class AlignmentSettings
 
     /// <summary>A link whose median tie-point residual under the joint solution exceeds this is left out, px (0.5..1000).</summary>
     public double LinkResidualLimitPx { get; set; } = 5;
+
+    /// <summary>Set model: Auto (default: rotation when warranted, else the lowest-freedom planar model), Planar (the estimation model) or Rotation.</summary>
+    public SetModelKind SetModel { get; set; } = SetModelKind.Auto;
+
+    /// <summary>Rotation sets: one focal length per image instead of one per camera.</summary>
+    public bool FocalPerImage { get; set; }
+
+    /// <summary>Rotation sets: radial distortion terms estimated per camera (None, K1, K1K2).</summary>
+    public DistortionTerms Distortion { get; set; } = DistortionTerms.None;
 
     /// <summary>Longest side of the preview mosaic, px (64..8192).</summary>
     public int PreviewMaxSide { get; set; } = 1600;
@@ -38,6 +48,15 @@ public sealed class AlignmentSettings
         }
         return errors;
     }
+
+    /// <summary>Core options of the rotation set model.</summary>
+    public RotationSetOptions ToRotationOptions() => new()
+    {
+        FocalPerImage = FocalPerImage,
+        Distortion = Distortion,
+        RobustScalePx = RobustScalePx,
+        LinkResidualLimitPx = LinkResidualLimitPx,
+    };
 
     /// <summary>Core options for a set whose images have these names (a named reference absent from the set is ignored).</summary>
     public AlignmentOptions ToOptions(IReadOnlyList<string> names)

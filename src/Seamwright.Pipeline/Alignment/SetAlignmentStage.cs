@@ -1,4 +1,5 @@
 using Seamwright.Core.Alignment;
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Preview;
 
@@ -10,12 +11,18 @@ namespace Seamwright.Pipeline.Alignment;
 /// <param name="ReferenceNames">Per image, the file name of its reference (null when unplaced).</param>
 /// <param name="ToReferenceRows">Per image, toReference as 3 rows of 3 (null when unplaced).</param>
 /// <param name="Visuals">Preview JPEG (null when nothing was placed) and report HTML.</param>
+/// <param name="SetModel">The set model used and why.</param>
+/// <param name="Cameras">Per image, the sidecar camera block (rotation sets only; null otherwise).</param>
+/// <param name="ToReferenceReasons">Per image, why toReference is null (null when it is present).</param>
 public sealed record AlignmentStageResult(
     SetAlignment Alignment,
     ManifestAlignment Manifest,
     string?[] ReferenceNames,
     double[][]?[] ToReferenceRows,
-    SetVisualOutputs Visuals);
+    SetVisualOutputs Visuals,
+    SetModelResult SetModel,
+    SidecarCamera?[] Cameras,
+    string?[] ToReferenceReasons);
 
 /// <summary>Runs the alignment of one set and builds everything it contributes to the outputs.</summary>
 public static class SetAlignmentStage
@@ -27,12 +34,28 @@ public static class SetAlignmentStage
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(settings);
         var names = images.Select(i => i.Name).ToList();
-        var alignment = SetAlignmentInputs.Align(images, pairs, model, settings.ToOptions(names));
+        var sizes = images.Select(i => i.Size).ToArray();
+        var setModel = SetModelSelector.Align(sizes, SetCameras.Of(sizes), SetAlignmentInputs.Links(pairs), model, settings.SetModel,
+            settings.ToOptions(names), settings.ToRotationOptions());
+        var alignment = setModel.Alignment;
         var references = alignment.Images.Select(p => p.Reference is int r ? names[r] : null).ToArray();
         var rows = alignment.Images.Select(p => p.ToReference?.ToRows()).ToArray();
+        var cameras = Enumerable.Range(0, images.Count)
+            .Select(i => setModel.Rotation?.Poses[i] is { } pose ? SidecarCamera.From(pose) : null).ToArray();
+        var reasons = alignment.Images.Select(p => p.IsPlaced ? null : p.Reason ?? "not placed").ToArray();
         open ??= new PreviewFiles(paths).Open;
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
             new PreviewOptions { MaxLongSide = settings.PreviewMaxSide });
-        return new AlignmentStageResult(alignment, ManifestAlignment.From(alignment, names), references, rows, visuals);
+        var manifest = ManifestAlignment.From(alignment, names) with { SetModel = ManifestSetModel.From(setModel) };
+        if (setModel.IsRotation)
+        {
+            // A camera that looks away from the reference plane is placed by its camera block: not unplaced.
+            manifest = manifest with
+            {
+                Unplaced = [.. manifest.Unplaced.Where(u => setModel.OffPlane[names.IndexOf(u.Image)] is null)],
+                Components = [.. manifest.Components.Select(c => c with { Images = [.. names.Where((_, i) => setModel.Rotation!.Poses[i] is not null)] })],
+            };
+        }
+        return new AlignmentStageResult(alignment, manifest, references, rows, visuals, setModel, cameras, reasons);
     }
 }

@@ -49,6 +49,10 @@ public sealed record SidecarDocument
     public string? Reference { get; init; }
     /// <summary>3x3 row-major rows mapping this image's pixels to the reference image's; filled by the set alignment.</summary>
     public double[][]? ToReference { get; init; }
+    /// <summary>Why <see cref="ToReference"/> is null (null when it is present).</summary>
+    public string? ToReferenceReason { get; init; }
+    /// <summary>The camera of a rotation set (focal, principal point, rotation, distortion); null for planar sets.</summary>
+    public Seamwright.Pipeline.Alignment.SidecarCamera? Camera { get; init; }
     public required SidecarLink[] Links { get; init; }
     public required string SettingsFingerprint { get; init; }
     public required ulong BaseSeed { get; init; }

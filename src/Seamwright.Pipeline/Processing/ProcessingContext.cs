@@ -36,7 +36,7 @@ public sealed class ProcessingContext
     public IPairReview? Review { get; set; }
 
     /// <summary>Version of the pipeline's own result shaping (planning, output content); bump when outputs change.</summary>
-    public const int PipelineVersion = 1;
+    public const int PipelineVersion = 2;
 
     public static string ToolVersion { get; } =
         typeof(ProcessingContext).Assembly.GetName().Version?.ToString(3) ?? "0.0.0";

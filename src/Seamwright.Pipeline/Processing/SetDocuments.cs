@@ -108,6 +108,8 @@ public static class SetDocuments
             Sha256 = g.Hash!,
             Reference = aligned.ReferenceNames[i],
             ToReference = aligned.ToReferenceRows[i],
+            ToReferenceReason = aligned.ToReferenceReasons[i],
+            Camera = aligned.Cameras[i],
             Links = links.ToArray(),
             SettingsFingerprint = run.Fingerprint,
             BaseSeed = run.Profile.Estimation.Seed,

@@ -1,0 +1,125 @@
+using System.Globalization;
+using Seamwright.Core.Estimation;
+using Seamwright.Core.Geometry;
+
+namespace Seamwright.Core.Alignment;
+
+/// <summary>The planar model a set is aligned in, with the scores behind the choice.</summary>
+/// <param name="Model">The chosen model.</param>
+/// <param name="Reason">Why, in words.</param>
+/// <param name="Scores">GRIC summed over the links, per candidate model (lower is better).</param>
+public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOnlyDictionary<MotionModel, double> Scores)
+{
+    /// <summary>
+    /// The lowest-freedom planar model that explains the links' tie points, by Torr's geometric
+    /// robust information criterion (GRIC; Torr, "Geometric motion segmentation and model
+    /// selection", Phil. Trans. R. Soc. A 1998): per link and model, sum of rho(e^2 / sigma^2) +
+    /// lambda1 d n + lambda2 k, with rho(x) = min(x, lambda3 (r - d)), r = 4 (a correspondence),
+    /// d = 2 (every planar model is a 2D manifold), lambda1 = ln r, lambda2 = ln(r n), lambda3 = 2,
+    /// k the model's parameters; e the forward transfer error of the least-squares fit and sigma
+    /// per coordinate from the most general candidate's fit. Summed over the links; the lowest sum
+    /// wins. A chain of homographies accumulates perspective the tie points never asked for; the
+    /// chosen model keeps a flat sweep flat.
+    /// </summary>
+    /// <param name="links">Usable links with their tie points.</param>
+    /// <param name="mostGeneral">The most general model allowed (the pairs' estimation model).</param>
+    public static PlanarModelChoice Choose(IReadOnlyList<AlignmentLink> links, MotionModel mostGeneral)
+    {
+        ArgumentNullException.ThrowIfNull(links);
+        var candidates = new[] { MotionModel.Translation, MotionModel.Similarity, MotionModel.Affine, MotionModel.Homography }
+            .Where(m => m <= mostGeneral).ToArray();
+        var scores = candidates.ToDictionary(m => m, _ => 0.0);
+        int used = 0;
+        foreach (var link in links)
+        {
+            var ties = link.TiePoints;
+            int n = ties.Length;
+            if (n < 2 * ModelParameters.Count(mostGeneral))
+            {
+                continue;
+            }
+            var residuals = new Dictionary<MotionModel, double[]>();
+            foreach (var m in candidates)
+            {
+                residuals[m] = Fit(m, ties, link.AToB) is { } t ? [.. ties.Select(c => TransferError.ForwardSquared(t, c))] : [];
+            }
+            var general = residuals[mostGeneral];
+            if (general.Length == 0)
+            {
+                continue;
+            }
+            int k = ModelParameters.Count(mostGeneral);
+            double sigma2 = Math.Max(general.Where(double.IsFinite).Order().Take(Math.Max(1, (int)(0.9 * n))).Sum() / Math.Max(1, 2 * n - k), 1e-6);
+            used++;
+            foreach (var m in candidates)
+            {
+                scores[m] += Gric(residuals[m], sigma2, n, ModelParameters.Count(m));
+            }
+        }
+        if (used == 0)
+        {
+            return new PlanarModelChoice(mostGeneral, $"no link has enough tie points to compare models; kept {Name(mostGeneral)}", scores);
+        }
+        var best = candidates.OrderBy(m => scores[m]).ThenBy(m => m).First();
+        string detail = string.Join(", ", candidates.Select(m => string.Create(CultureInfo.InvariantCulture, $"{Name(m)} {scores[m]:0}")));
+        return new PlanarModelChoice(best, $"{Name(best)} explains the tie points of {used} links best by GRIC (Torr 1998; {detail})", scores);
+    }
+
+    private static double Gric(double[] squared, double sigma2, int n, int k)
+    {
+        if (squared.Length == 0)
+        {
+            return double.PositiveInfinity;
+        }
+        const double r = 4, d = 2, lambda3 = 2;
+        double sum = 0;
+        foreach (double e2 in squared)
+        {
+            sum += double.IsFinite(e2) ? Math.Min(e2 / sigma2, lambda3 * (r - d)) : lambda3 * (r - d);
+        }
+        return sum + Math.Log(r) * d * n + Math.Log(r * n) * k;
+    }
+
+    /// <summary>
+    /// The links with each usable transform refitted in <paramref name="model"/> to its tie points
+    /// (least squares), so the spanning tree chains that model and not the pairs' more general one.
+    /// </summary>
+    public static List<AlignmentLink> Refit(IReadOnlyList<AlignmentLink> links, MotionModel model)
+    {
+        ArgumentNullException.ThrowIfNull(links);
+        return [.. links.Select(l => l.TiePoints.Length >= 2 * ModelParameters.Count(model) && Fit(model, l.TiePoints, l.AToB) is { } t ? l with { AToB = t } : l)];
+    }
+
+    private static Transform2D? Fit(MotionModel model, Correspondence[] ties, Transform2D initial)
+    {
+        bool ok = model switch
+        {
+            MotionModel.Translation => TranslationSolver.TryFit(ties, out var t) && Keep(t, out initial),
+            MotionModel.Similarity => SimilaritySolver.TryFit(ties, out var s) && Keep(s, out initial),
+            MotionModel.Affine => AffineSolver.TryFit(ties, out var a) && Keep(a, out initial),
+            _ => HomographySolver.TryLeastSquares(ties, out var h) && Keep(h, out initial),
+        };
+        if (!ok)
+        {
+            return null;
+        }
+        if (model == MotionModel.Homography)
+        {
+            // The linear fit minimises an algebraic error; recentre it on the transfer error.
+            var fit = LevenbergMarquardtFit.Fit(model, ties, initial, []);
+            if (fit.Transform.IsFinite)
+            {
+                initial = fit.Transform;
+            }
+        }
+        return initial;
+    }
+
+    private static bool Keep(Transform2D t, out Transform2D into)
+    {
+        into = t;
+        return t.IsFinite;
+    }
+
+    private static string Name(MotionModel m) => m.ToString().ToLowerInvariant();
+}
