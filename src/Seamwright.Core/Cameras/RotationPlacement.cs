@@ -30,7 +30,7 @@ public static class RotationPlacement
             }
             var h = pose.ToCamera(reference);
             var corners = Transform2D.Corners(sizes[i].Width, sizes[i].Height);
-            if (corners.Any(c => !(h.W(c.X, c.Y) > 0)))
+            if (!pose.InFrontOf(reference, sizes[i].Width, sizes[i].Height) || corners.Any(c => !(h.W(c.X, c.Y) > 0)))
             {
                 offPlane[i] = "looks away from the reference image's plane (part of it maps behind the reference camera); its camera block places it";
                 placements[i] = new ImagePlacement(i, null, null, null, offPlane[i]);

@@ -17,6 +17,26 @@ public sealed record CameraPose(int Index, Matrix3 Rotation, double FocalPx, dou
         return Rotation.Apply(x / n, y / n, 1 / n);
     }
 
+    /// <summary>
+    /// True when the ideal rays of every corner of a width x height image of this camera point into
+    /// the half-space in front of <paramref name="reference"/> (then <see cref="ToCamera"/> maps the
+    /// whole image with w &gt; 0; its scaling to m33 = 1 would hide a camera facing away).
+    /// </summary>
+    public bool InFrontOf(CameraPose reference, int width, int height)
+    {
+        ArgumentNullException.ThrowIfNull(reference);
+        var r = reference.Rotation.Transpose() * Rotation;
+        foreach (var (u, v) in Transform2D.Corners(width, height))
+        {
+            var (_, _, z) = r.Apply((u - Cx) / FocalPx, (v - Cy) / FocalPx, 1);
+            if (!(z > 1e-9))
+            {
+                return false;
+            }
+        }
+        return true;
+    }
+
     /// <summary>Homography from this camera's pixels to <paramref name="reference"/>'s (distortion ignored): K_r R_r^T R K^-1.</summary>
     public Transform2D ToCamera(CameraPose reference)
     {

@@ -216,7 +216,8 @@ public static class RotationSetSolver
     /// </summary>
     private static List<AlignmentLink> CycleConsistent(IReadOnlyList<ImageSize> sizes, List<AlignmentLink> links, out List<LeftOutLink> leftOut)
     {
-        var graph = new LinkGraph(sizes, links, [.. Enumerable.Range(0, links.Count)], MotionModel.Homography);
+        // The links' own homographies (already fitted to their tie points by the pair stage's polish).
+        var graph = new LinkGraph(sizes, links, [.. Enumerable.Range(0, links.Count)]);
         var demoted = CycleCheck.Run(graph, new AlignmentOptions());
         leftOut = [.. demoted.Select(d => new LeftOutLink(d.ImageA, d.ImageB, d.Reason))];
         return [.. Enumerable.Range(0, links.Count).Where(l => graph.Active[l]).Select(l => links[l])];

@@ -1,3 +1,4 @@
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Geometry;
 using Seamwright.Core.Imaging;
 using Seamwright.Core.Synthetic;
@@ -15,6 +16,10 @@ namespace Seamwright.Pipeline.Demo;
 /// scaled as the sheet shifts on the scanner bed, and exposure varies a little.</item>
 /// <item><c>courtyard-pan</c>: five frames of a camera panning across a paved courtyard while
 /// turning about its centre, so frame-to-frame motion is exactly K R K^-1.</item>
+/// <item><c>lantern-gallery-turn</c>: the (fictional) Saltmarsh Point lighthouse trust records
+/// the view from its lantern gallery with one full turn of a camera on a tripod head: twelve
+/// frames 30 degrees apart with a little wobble of the head; the truth is each frame's rotation
+/// and the focal length.</item>
 /// </list>
 /// </summary>
 public static class DemoGenerator
@@ -24,7 +29,7 @@ public static class DemoGenerator
     public const int JpegQuality = 90;
     private const int SamplesPerAxis = 2;
 
-    public static IReadOnlyList<DemoSet> Sets { get; } = [EstateMapTiles(), CourtyardPan()];
+    public static IReadOnlyList<DemoSet> Sets { get; } = [EstateMapTiles(), CourtyardPan(), LanternGalleryTurn()];
 
     /// <summary>
     /// Writes every set under <paramref name="root"/> (one folder per set, images and
@@ -61,7 +66,7 @@ public static class DemoGenerator
     {
         ArgumentNullException.ThrowIfNull(set);
         ArgumentNullException.ThrowIfNull(image);
-        var pixels = SceneRenderer.Render(set.Scene, image.View, SamplesPerAxis);
+        var pixels = image.Camera is { } camera ? camera.Render(set.Scene, SamplesPerAxis) : SceneRenderer.Render(set.Scene, image.View, SamplesPerAxis);
         pixels = ImageEffects.AdjustBrightnessContrast(pixels, image.Contrast, image.Brightness);
         return ImageEffects.AddGaussianNoise(pixels, image.NoiseSigma, image.NoiseSeed);
     }
@@ -101,6 +106,32 @@ public static class DemoGenerator
         return new DemoSet("estate-map-tiles",
             "Harrowmere County Archive (fictional): a hand-drawn estate map scanned in a 3 x 3 grid of overlapping tiles.",
             scene, "tile_r2_c2.jpg", images);
+    }
+
+    private static DemoSet LanternGalleryTurn()
+    {
+        var scene = new ProceduralScene(seed: 18710904, SceneStyle.Courtyard);
+        const int width = 480, height = 360;
+        // 80 degree horizontal field of view: second neighbours (60 degrees apart) still share a quarter.
+        double focal = (width / 2.0) / Math.Tan(40 * Math.PI / 180);
+        // Per frame: pitch and roll wobble of the head (degrees), contrast, brightness. Fixed, invented.
+        double[,] wobble =
+        {
+            { 0.0, 0.0, 1.00, 0 }, { 1.1, -0.4, 0.98, 3 }, { -0.7, 0.6, 1.02, -2 }, { 0.4, 0.9, 1.04, 4 },
+            { -1.2, -0.3, 0.97, -3 }, { 0.8, -0.8, 1.01, 1 }, { -0.3, 0.5, 0.99, 2 }, { 1.4, 0.2, 1.03, -4 },
+            { -0.9, -0.6, 0.96, 0 }, { 0.2, 0.7, 1.02, 3 }, { -0.5, -0.9, 1.00, -1 }, { 0.9, 0.3, 0.98, 2 },
+        };
+        var images = new List<DemoImage>();
+        for (int i = 0; i < 12; i++)
+        {
+            var rotation = Matrix3.FromYawPitchRoll(30.0 * i * Math.PI / 180, wobble[i, 0] * Math.PI / 180, wobble[i, 1] * Math.PI / 180);
+            var camera = new SphericalView(width, height, focal, rotation, LensDistortion.None, SceneUnitsPerTangent: focal);
+            images.Add(new DemoImage($"turn_{i + 1:00}.jpg", new SceneView(width, height, Transform2D.Identity), wobble[i, 2], wobble[i, 3],
+                NoiseSigma: 2.0, NoiseSeed: 3000UL + (ulong)i) { Camera = camera });
+        }
+        return new DemoSet("lantern-gallery-turn",
+            "Saltmarsh Point lighthouse trust (fictional): one full turn of a camera on a tripod head in the lantern gallery, twelve frames.",
+            scene, "turn_01.jpg", images);
     }
 
     private static DemoSet CourtyardPan()

@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text;
 using System.Text.Json;
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Geometry;
 using Seamwright.Pipeline.Output;
 
@@ -10,21 +11,37 @@ namespace Seamwright.Pipeline.Demo;
 /// Ground truth of a demo set, stored as <c>_truth.json</c> in the set folder:
 /// <c>{"reference": "&lt;file name&gt;", "toReference": {"&lt;file name&gt;": [[..],[..],[..]], ...}}</c>.
 /// Each 3x3 matrix (row-major rows, m33 = 1) maps that image's full-resolution pixels (centres
-/// at integers) to the reference image's pixels; the reference maps by the identity.
+/// at integers) to the reference image's pixels; the reference maps by the identity. Sets of a
+/// camera turning about its centre add <c>"cameras": {"&lt;file name&gt;": {"focalPx": f,
+/// "rotation": [[..],[..],[..]]}}</c> (camera to world, x right, y down, z forward, as the
+/// sidecar's camera block) and list under toReference only the frames that map into the
+/// reference's plane.
 /// </summary>
 public sealed record DemoTruth(string Reference, IReadOnlyDictionary<string, Transform2D> ToReference)
 {
     public const string FileName = "_truth.json";
 
+    /// <summary>Per frame, the focal length and rotation (camera sets only; empty otherwise).</summary>
+    public IReadOnlyDictionary<string, (double FocalPx, Matrix3 Rotation)> Cameras { get; init; } =
+        new SortedDictionary<string, (double, Matrix3)>(StringComparer.Ordinal);
+
     public static DemoTruth From(DemoSet set)
     {
         ArgumentNullException.ThrowIfNull(set);
         var map = new SortedDictionary<string, Transform2D>(StringComparer.Ordinal);
+        var cameras = new SortedDictionary<string, (double, Matrix3)>(StringComparer.Ordinal);
         foreach (var image in set.Images)
         {
-            map[image.FileName] = image.FileName == set.Reference ? Transform2D.Identity : set.ToReference(image);
+            if (image.Camera is { } c)
+            {
+                cameras[image.FileName] = (c.FocalPx, c.Rotation);
+            }
+            if (set.MapsIntoReference(image))
+            {
+                map[image.FileName] = image.FileName == set.Reference ? Transform2D.Identity : set.ToReference(image);
+            }
         }
-        return new DemoTruth(set.Reference, map);
+        return new DemoTruth(set.Reference, map) { Cameras = cameras };
     }
 
     /// <summary>Indented JSON, one matrix row per line, numbers in shortest round-trip form.</summary>
@@ -46,7 +63,28 @@ public sealed record DemoTruth(string Reference, IReadOnlyDictionary<string, Tra
             }
             text.Append(']');
         }
-        text.Append("\n  }\n}\n");
+        text.Append("\n  }");
+        if (Cameras.Count > 0)
+        {
+            text.Append(",\n  \"cameras\": {");
+            bool firstCamera = true;
+            foreach (var (name, (focal, r)) in Cameras.OrderBy(p => p.Key, StringComparer.Ordinal))
+            {
+                text.Append(firstCamera ? "\n" : ",\n").Append("    ").Append(JsonSerializer.Serialize(name)).Append(": {\"focalPx\": ")
+                    .Append(focal.ToString("R", CultureInfo.InvariantCulture)).Append(", \"rotation\": [");
+                firstCamera = false;
+                double[] m = r.ToRowMajor();
+                for (int row = 0; row < 3; row++)
+                {
+                    text.Append(row == 0 ? "[" : ", [");
+                    text.AppendJoin(", ", m.Skip(3 * row).Take(3).Select(v => v.ToString("R", CultureInfo.InvariantCulture)));
+                    text.Append(']');
+                }
+                text.Append("]}");
+            }
+            text.Append("\n  }");
+        }
+        text.Append("\n}\n");
         return Encoding.UTF8.GetBytes(text.ToString());
     }
 
@@ -63,6 +101,15 @@ public sealed record DemoTruth(string Reference, IReadOnlyDictionary<string, Tra
             double[][] rows = [.. entry.Value.EnumerateArray().Select(r => r.EnumerateArray().Select(v => v.GetDouble()).ToArray())];
             map[entry.Name] = Transform2D.FromRows(rows);
         }
-        return new DemoTruth(reference, map);
+        var cameras = new SortedDictionary<string, (double, Matrix3)>(StringComparer.Ordinal);
+        if (root.TryGetProperty("cameras", out var cams))
+        {
+            foreach (var entry in cams.EnumerateObject())
+            {
+                double[] m = [.. entry.Value.GetProperty("rotation").EnumerateArray().SelectMany(r => r.EnumerateArray().Select(v => v.GetDouble()))];
+                cameras[entry.Name] = (entry.Value.GetProperty("focalPx").GetDouble(), Matrix3.FromRowMajor(m));
+            }
+        }
+        return new DemoTruth(reference, map) { Cameras = cameras };
     }
 }

@@ -1,6 +1,7 @@
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Alignment;
 using Seamwright.Pipeline.Output;
+using Seamwright.Pipeline.Planning;
 using Seamwright.Pipeline.State;
 
 namespace Seamwright.Pipeline.Processing;
@@ -23,7 +24,7 @@ public static class SetManifest
             pairs.Images.Count, BadFiles(all, pairs).Count(), pairs.Pairs.Count,
             pairs.Pairs.Count(p => p.Estimate.Status == PairStatus.Accepted),
             pairs.Pairs.Count(p => p.Estimate.Status == PairStatus.Weak),
-            pairs.Pairs.Count(p => p.Estimate.Status == PairStatus.Rejected),
+            pairs.Pairs.Count(p => p.Estimate.Status == PairStatus.Rejected && !OverlapPlanning.IsNotExpected(p.Estimate)),
             run.Incomplete);
     }
 

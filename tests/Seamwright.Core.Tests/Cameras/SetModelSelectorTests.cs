@@ -113,6 +113,15 @@ public class SetModelSelectorTests(ITestOutputHelper output)
         // Frames more than about 57 degrees from the reference have corners behind its plane: no toReference, with a reason.
         Assert.Contains(result.OffPlane, r => r is not null);
         Assert.All(Enumerable.Range(0, rig.Count), i => Assert.True(result.Alignment.Images[i].IsPlaced || result.OffPlane[i] is not null));
+        // Exactly the frames whose corners all lie in front of the reference camera (by the truth) have a plane transform.
+        int r = result.Rotation!.Reference;
+        for (int i = 0; i < rig.Count; i++)
+        {
+            var rel = rig.Rotations[r].Transpose() * rig.Rotations[i];
+            bool front = Transform2D.Corners(rig.Size.Width, rig.Size.Height)
+                .All(c => rel.Apply((c.X - (rig.Size.Width - 1) / 2.0) / rig.Focal, (c.Y - (rig.Size.Height - 1) / 2.0) / rig.Focal, 1).Z > 0);
+            Assert.True(front == result.Alignment.Images[i].IsPlaced, $"frame {i}: in front {front}, placed {result.Alignment.Images[i].IsPlaced}");
+        }
     }
 
     [Fact]

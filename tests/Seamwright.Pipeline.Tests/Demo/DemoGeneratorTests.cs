@@ -1,3 +1,4 @@
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Geometry;
 using Seamwright.Core.Imaging;
 using Seamwright.Pipeline.Demo;
@@ -17,7 +18,7 @@ public sealed class DemoGeneratorTests : IDisposable
     {
         // Rendering every image takes minutes in a Debug build; one perspective frame, one
         // rotated tile and every truth file cover both sets.
-        string[] sampled = ["frame_05.jpg", "tile_r3_c1.jpg"];
+        string[] sampled = ["frame_05.jpg", "tile_r3_c1.jpg", "turn_07.jpg"];
         var written = DemoGenerator.Generate(_folder.Path, name => sampled.Contains(name));
         Assert.Equal(sampled.Length + DemoGenerator.Sets.Count, written.Count);
         foreach (string path in written)
@@ -53,6 +54,10 @@ public sealed class DemoGeneratorTests : IDisposable
             {
                 Assert.True(Transform2D.MaxPointDistance(t, b.ToReference[name], Transform2D.Corners(DemoGenerator.ImageWidth, DemoGenerator.ImageHeight)) < 1e-6, name);
             }
+            foreach (var (name, c) in a.Cameras)
+            {
+                Assert.True(Matrix3.AngleBetween(c.Rotation, b.Cameras[name].Rotation) < 1e-9 && Math.Abs(c.FocalPx - b.Cameras[name].FocalPx) < 1e-9, name);
+            }
             return;
         }
         var loader = new ImageLoader();
@@ -78,7 +83,9 @@ public sealed class DemoGeneratorTests : IDisposable
             string folder = Path.Combine(SampleFolder, set.Name);
             var truth = DemoTruth.Read(Path.Combine(folder, DemoTruth.FileName));
             var files = Directory.GetFiles(folder, "*.jpg").Select(Path.GetFileName).Order(StringComparer.Ordinal);
-            Assert.Equal(files, truth.ToReference.Keys.Order(StringComparer.Ordinal));
+            // Camera sets list every frame under cameras, and under toReference those in front of the reference.
+            Assert.Equal(files, (truth.Cameras.Count > 0 ? truth.Cameras.Keys : truth.ToReference.Keys).Order(StringComparer.Ordinal));
+            Assert.All(truth.ToReference.Keys, k => Assert.Contains(k, files));
             Assert.Equal(Transform2D.Identity, truth.ToReference[truth.Reference]);
             Assert.True(set.Images.Count >= 5);
         }
@@ -87,6 +94,7 @@ public sealed class DemoGeneratorTests : IDisposable
     [Theory]
     [InlineData("estate-map-tiles")]
     [InlineData("courtyard-pan")]
+    [InlineData("lantern-gallery-turn")]
     public void SampleFolder_TruthTransforms_AlignCommittedPixels(string setName)
     {
         // Pixels of each image and of the reference at the mapped points must agree (normalised
