@@ -45,7 +45,7 @@ public static class SetAlignmentStage
         var reasons = alignment.Images.Select(p => p.IsPlaced ? null : p.Reason ?? "not placed").ToArray();
         open ??= new PreviewFiles(paths).Open;
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
-            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide });
+            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel);
         var manifest = ManifestAlignment.From(alignment, names) with { SetModel = ManifestSetModel.From(setModel) };
         if (setModel.IsRotation)
         {

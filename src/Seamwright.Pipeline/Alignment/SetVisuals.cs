@@ -19,7 +19,8 @@ public static class SetVisuals
     public const string ReportFileName = "report.html";
 
     public static SetVisualOutputs Build(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
-        IReadOnlyList<AlignedPair> pairs, SetAlignment alignment, PreviewImageOpener open, PreviewOptions? options = null)
+        IReadOnlyList<AlignedPair> pairs, SetAlignment alignment, PreviewImageOpener open, PreviewOptions? options = null,
+        Seamwright.Core.Cameras.SetModelResult? setModel = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(pairs);
@@ -41,7 +42,12 @@ public static class SetVisuals
             return image;
         }
         byte[]? preview = null;
-        if (alignment.Canvas is CanvasBounds canvas)
+        if (setModel is { Rotation: { } rotation, Extent: { Projection: not Seamwright.Core.Cameras.StitchProjection.Rectilinear } extent })
+        {
+            // Wide rotation sets: the preview in their suggested projection.
+            preview = SphericalPreview.RenderJpeg([.. rotation.Poses.OfType<Seamwright.Core.Cameras.CameraPose>()], extent, OpenAndThumb, options);
+        }
+        else if (alignment.Canvas is CanvasBounds canvas)
         {
             var placed = alignment.Images.Where(p => p.IsPlaced && p.Component == 0)
                 .Select(p => new PreviewImage(p.Index, images[p.Index].Size, p.ToReference!.Value)).ToList();
@@ -71,7 +77,8 @@ public static class SetVisuals
             images[p.A].Name, images[p.B].Name, p.Estimate.Status.Word(), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
             p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B))).ToList();
         var report = new SetReport(setName, runId, fingerprint, alignment.Model.ToString().ToLowerInvariant(), reportImages, reportPairs, preview,
-            AlignmentSummary.Facts(alignment, names), AlignmentSummary.Warnings(alignment, names));
+            [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names)],
+            SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names));
         return new SetVisualOutputs(preview, report, ReportHtml.Render(report));
     }
 
