@@ -1,6 +1,7 @@
 using Seamwright.Host.Configuration;
 using Seamwright.Host.Terminal;
 using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Output;
 using Seamwright.Pipeline.Processing;
 using Seamwright.Pipeline.Sets;
 using Seamwright.Pipeline.Settings;
@@ -12,7 +13,7 @@ using Spectre.Console;
 namespace Seamwright.Host.Commands;
 
 /// <summary>What a one-shot pass does: <c>run</c> (every set not up to date) or <c>rerun</c> (the same, limited to a path, optionally forced or dry).</summary>
-internal sealed record OneShotRequest(string Folder, string? Output, string? ConfigFile, string[] Overrides, string? Within, bool DryRun, bool Force);
+internal sealed record OneShotRequest(string Folder, string? Output, string? ConfigFile, string[] Overrides, string? Within, bool DryRun, bool Force, bool Strict = false);
 
 /// <summary>One pass over a root: discover sets, skip the unchanged, process the rest, print a summary, return the exit code.</summary>
 internal static class OneShot
@@ -35,6 +36,10 @@ internal static class OneShot
             return ExitCodes.Fatal;
         }
 
+        if (req.DryRun)
+        {
+            return DryRun(req, options, root, engine);
+        }
         bool interactive = RunProgress.TerminalIsInteractive();
         using var log = new LoggerConfiguration()
             .MinimumLevel.Debug()
@@ -66,11 +71,6 @@ internal static class OneShot
                 return ExitCodes.BadArguments;
             }
             var todo = ToRedo(session, sets, req.Force);
-            if (req.DryRun)
-            {
-                PrintDryRun(session, sets.Count, todo);
-                return ExitCodes.Ok;
-            }
             if (todo.Count == 0)
             {
                 System.Console.Out.WriteLine($"Nothing to do: all {sets.Count} sets are unchanged since their last run (inputs and settings). Outputs in {output}");
@@ -85,7 +85,7 @@ internal static class OneShot
                     outcomes[item.Set.SetId] = processor.Process(item.Set, incomplete: false, CancellationToken.None);
                 });
             });
-            int code = Summarize(session, sets, outcomes, started.Elapsed, output);
+            int code = Summarize(session, sets, outcomes, started.Elapsed, output, req.Strict);
             log.Information("Run finished in {Seconds:0.0} s with exit code {Code}", started.Elapsed.TotalSeconds, code);
             return code;
         }
@@ -134,23 +134,81 @@ internal static class OneShot
         return todo;
     }
 
-    private static void PrintDryRun(RootSession session, int sets, List<(SetInputs Set, string Why)> todo)
+    /// <summary>
+    /// `rerun --dry-run`: reads the ledger without taking the output root's lock (so it works while
+    /// `watch` serves it) and writes nothing. Exit 0 when nothing would be redone, 3 when something would.
+    /// </summary>
+    private static int DryRun(OneShotRequest req, SeamwrightOptions options, RootSettings root, IPairEngine engine)
     {
-        System.Console.Out.WriteLine(todo.Count == 0
-            ? $"Nothing would be redone: all {sets} sets are up to date."
-            : $"{todo.Count} of {sets} sets would be redone:");
-        foreach (var (s, why) in todo)
+        string output = root.EffectiveOutput;
+        var catalog = new SetCatalog(root, options);
+        var all = catalog.Discover();
+        var sets = req.Within is null ? all : all.Where(s => InScope(catalog, s, req.Within)).ToList();
+        if (req.Within is not null && sets.Count == 0)
         {
-            var count = PairRedoPreview.Count(session.Context, s);
-            System.Console.Out.WriteLine($"  {s.SetId}\t{why}; {count.ToEstimate} of {count.Planned} pairs would be estimated"
-                + (count.NotAnalysed > 0 ? $" ({count.NotAnalysed} images not analysed yet)" : ""));
+            System.Console.Error.WriteLine($"seamwright: no set found under {req.Within}");
+            return ExitCodes.BadArguments;
         }
+        StateStore? store = null;
+        try
+        {
+            store = StateStore.Open(output, options.State, readOnly: true);
+        }
+        catch (FileNotFoundException)
+        {
+            // nothing processed yet: every set would be done
+        }
+        using (store)
+        {
+            var todo = sets.Select(s => (Set: s, Why: req.Force ? "forced"
+                    : store is null ? "never processed" : WhyRedo(store, output, p => ProcessingContext.Fingerprint(options, engine, p), s)))
+                .Where(t => t.Why is not null).ToList();
+            System.Console.Out.WriteLine(todo.Count == 0
+                ? $"Nothing would be redone: all {sets.Count} sets are up to date."
+                : $"{todo.Count} of {sets.Count} sets would be redone:");
+            var ctx = store is null ? null : PreviewContext(output, options, engine, store);
+            foreach (var (s, why) in todo)
+            {
+                System.Console.Out.WriteLine($"  {s.SetId}\t{why}" + (ctx is null ? "" : PairsWouldBeEstimated(ctx, s)));
+            }
+            return todo.Count == 0 ? ExitCodes.Ok : ExitCodes.FinishedWithProblems;
+        }
+    }
+
+    /// <summary>A context for reading the caches only: the output root is not locked and nothing is processed (the confidence log is only opened, under its own file lock).</summary>
+    private static ProcessingContext PreviewContext(string output, SeamwrightOptions options, IPairEngine engine, StateStore store) => new()
+    {
+        OutputRoot = output,
+        Options = options,
+        Store = store,
+        Log = new ConfidenceLog(output),
+        Engine = engine,
+        Cache = new FeatureCache(output, engine),
+        Budget = new MemoryBudget((long)options.Service.MemoryBudgetMegabytes << 20),
+        JobSlots = new SemaphoreSlim(1),
+    };
+
+    private static string PairsWouldBeEstimated(ProcessingContext ctx, SetInputs s)
+    {
+        var count = PairRedoPreview.Count(ctx, s);
+        return $"; {count.ToEstimate} of {count.Planned} pairs would be estimated"
+            + (count.NotAnalysed > 0 ? $" ({count.NotAnalysed} images not analysed yet)" : "");
     }
 
     /// <summary>Null when the set is up to date; otherwise why it must be (re)done, in words.</summary>
     public static string? WhyRedo(ProcessingContext ctx, SetInputs set)
     {
-        var rec = ctx.Store.GetSet(set.SetId);
+        ArgumentNullException.ThrowIfNull(ctx);
+        return WhyRedo(ctx.Store, ctx.OutputRoot, ctx.FingerprintFor, set);
+    }
+
+    /// <summary>Null when the set is up to date by this ledger and fingerprint; otherwise why it must be (re)done.</summary>
+    public static string? WhyRedo(StateStore store, string outputRoot, Func<string, string> fingerprintFor, SetInputs set)
+    {
+        ArgumentNullException.ThrowIfNull(store);
+        ArgumentNullException.ThrowIfNull(fingerprintFor);
+        ArgumentNullException.ThrowIfNull(set);
+        var rec = store.GetSet(set.SetId);
         if (rec is null || rec.DoneRun is null)
         {
             return "never processed";
@@ -159,25 +217,29 @@ internal static class OneShot
         {
             return "the last run failed: " + rec.Reason;
         }
-        if (rec.Fingerprint != ctx.FingerprintFor(set.Profile))
+        string fingerprint = fingerprintFor(set.Profile);
+        if (rec.Fingerprint != fingerprint)
         {
-            return $"settings changed (fingerprint {rec.Fingerprint} -> {ctx.FingerprintFor(set.Profile)})";
+            return $"settings changed (fingerprint {rec.Fingerprint} -> {fingerprint})";
         }
         if (rec.Inputs != set.InputsDigest())
         {
             return "input files added, replaced or removed";
         }
-        return ctx.IsUpToDate(set) ? null : rec.State != SetStates.Done ? "the last run did not finish" : "its manifest is missing";
+        bool manifest = File.Exists(Path.Combine(OutputLayout.SetFolder(outputRoot, set.SetId), OutputLayout.ManifestName));
+        return rec.State == SetStates.Done && manifest ? null : rec.State != SetStates.Done ? "the last run did not finish" : "its manifest is missing";
     }
 
-    private static bool InScope(RootSession session, SetInputs set, string within)
+    private static bool InScope(RootSession session, SetInputs set, string within) => InScope(session.Catalog, set, within);
+
+    private static bool InScope(SetCatalog catalog, SetInputs set, string within)
     {
         string full = Path.GetFullPath(within).TrimEnd('/', '\\');
-        if (full == session.Catalog.RootPath)
+        if (full == catalog.RootPath)
         {
             return true;
         }
-        string rel = session.Catalog.RootRelative(full);
+        string rel = catalog.RootRelative(full);
         return set.SetId == rel || set.SetId.StartsWith(rel + "/", StringComparison.Ordinal)
             || set.Files.Any(f => f.FullPath.StartsWith(full + Path.DirectorySeparatorChar, StringComparison.Ordinal));
     }
@@ -203,7 +265,13 @@ internal static class OneShot
         }
     }
 
-    private static int Summarize(RootSession session, IReadOnlyList<SetInputs> sets, IReadOnlyDictionary<string, SetOutcome> outcomes, TimeSpan elapsed, string output)
+    /// <summary>
+    /// The summary table of every set; the exit code reflects the sets processed in this run (3
+    /// when one of them failed or has weak or rejected pairs, bad files or is incomplete).
+    /// Unchanged sets are listed but counted only with <paramref name="strict"/>, so a nightly
+    /// run over old bad files exits 0 once nothing changed.
+    /// </summary>
+    private static int Summarize(RootSession session, IReadOnlyList<SetInputs> sets, IReadOnlyDictionary<string, SetOutcome> outcomes, TimeSpan elapsed, string output, bool strict)
     {
         bool plain = System.Console.IsOutputRedirected;
         if (plain)
@@ -223,12 +291,13 @@ internal static class OneShot
             string what = outcomes.TryGetValue(s.SetId, out var o)
                 ? o.Kind switch { SetOutcomeKind.Done => "processed", SetOutcomeKind.Changed => "changed, retry", _ => "FAILED" }
                 : "unchanged";
-            if (o is { Kind: not SetOutcomeKind.Done } || rec?.State == SetStates.Failed)
+            bool counted = o is not null || strict;
+            if (counted && (o is { Kind: not SetOutcomeKind.Done } || rec?.State == SetStates.Failed))
             {
                 problems = true;
             }
             var sum = run?.Summary;
-            if (sum is null || sum.Weak + sum.Rejected + sum.BadFiles > 0 || sum.Incomplete)
+            if (counted && (sum is null || sum.Weak + sum.Rejected + sum.BadFiles > 0 || sum.Incomplete))
             {
                 problems = true;
             }

@@ -5,14 +5,14 @@ namespace Seamwright.Host.Commands;
 /// <summary><c>seamwright run FOLDER [--output DIR] [--config FILE]</c>: processes every set of FOLDER once.</summary>
 internal static class RunCommand
 {
-    public const string Usage = "run FOLDER [--output DIR] [--config FILE]";
+    public const string Usage = "run FOLDER [--strict] [--output DIR] [--config FILE]";
 
     public static int Execute(string[] args)
     {
         CommandArgs a;
         try
         {
-            a = CommandArgs.Parse(args, ["--output", "--config"], []);
+            a = CommandArgs.Parse(args, ["--output", "--config"], ["--strict"]);
         }
         catch (SettingsException e)
         {
@@ -22,7 +22,7 @@ internal static class RunCommand
         {
             return Bad("run needs exactly one FOLDER: seamwright " + Usage);
         }
-        return OneShot.Execute(new OneShotRequest(a.Positional[0], a.Value("--output"), a.Value("--config"), a.Overrides.ToArray(), null, false, false));
+        return OneShot.Execute(new OneShotRequest(a.Positional[0], a.Value("--output"), a.Value("--config"), a.Overrides.ToArray(), null, false, false, a.Flag("--strict")));
     }
 
     internal static int Bad(string message)

@@ -30,7 +30,11 @@ internal static class WatchCommand
         {
             return bad;
         }
-        var builder = CreateBuilder(a, options);
+        var reloadGuard = new SettingsReloadGuard();
+        if (TryCreateBuilder(a, options, reloadGuard, out var builder) is int unreadable)
+        {
+            return unreadable;
+        }
 
         var sessions = new List<RootSession>();
         bool started = false;
@@ -65,7 +69,7 @@ internal static class WatchCommand
             var loops = HostExit.LoopsOf(host);
             var operations = host.Services.GetService<OperationsLoop>(); // resolved now: Run disposes the host's services
             host.Services.GetRequiredService<IHostApplicationLifetime>().ApplicationStarted.Register(() => started = true);
-            using var reload = ChangeToken.OnChange(((IConfiguration)builder.Configuration).GetReloadToken, () => Reload(builder.Configuration, a, runtime));
+            using var reload = WatchReloads(builder.Configuration, a, runtime, reloadGuard);
             host.Run();
             if (HostExit.CodeFor(loops, runtime.Fatal) != ExitCodes.Ok)
             {
@@ -152,15 +156,31 @@ internal static class WatchCommand
         return null;
     }
 
+    /// <summary>The builder with the reload guard armed, or exit 2 when a settings file cannot be parsed (file and line named).</summary>
+    private static int? TryCreateBuilder(CommandArgs a, SeamwrightOptions options, SettingsReloadGuard reloadGuard, out HostApplicationBuilder builder)
+    {
+        builder = null!;
+        try
+        {
+            builder = CreateBuilder(a, options, reloadGuard);
+        }
+        catch (SettingsException e)
+        {
+            return RunCommand.Bad(e.Message);
+        }
+        reloadGuard.Armed = true;
+        return null;
+    }
+
     /// <summary>The Generic Host builder: settings sources (reloading), service managers, shutdown, Serilog.</summary>
-    private static HostApplicationBuilder CreateBuilder(CommandArgs a, SeamwrightOptions options)
+    private static HostApplicationBuilder CreateBuilder(CommandArgs a, SeamwrightOptions options, SettingsReloadGuard reloadGuard)
     {
         var builder = Microsoft.Extensions.Hosting.Host.CreateApplicationBuilder(new HostApplicationBuilderSettings
         {
             DisableDefaults = true,
             ContentRootPath = AppContext.BaseDirectory,
         });
-        builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true);
+        builder.Configuration.AddSeamwrightSources(a.Value("--config"), a.Overrides.ToArray(), reloadOnChange: true, reloadGuard);
         // Settings are bound and validated once, by SettingsLoader.Bind (above, and again on each
         // reload): no IOptions<SeamwrightOptions> is registered, since nothing would read it. Each set
         // run takes a RunPlan snapshot when it begins (docs/ARCHITECTURE.md), so a reload reaches
@@ -181,7 +201,7 @@ internal static class WatchCommand
             : new LoggerConfiguration().MinimumLevel.Information().MinimumLevel.Override("Microsoft", Serilog.Events.LogEventLevel.Warning)
                 .WriteTo.Console().CreateLogger();
         builder.Services.AddSerilog(Log.Logger, dispose: false);
-        string settingsFile = Path.GetFullPath(a.Value("--config") ?? SettingsLoader.DefaultConfigFile);
+        string settingsFile = SettingsFileOf(a);
         Log.Information("Settings file {File} ({State}); environment variables and command-line overrides win over it",
             settingsFile, File.Exists(settingsFile) ? "read" : "absent: built-in defaults");
         return builder;
@@ -197,9 +217,36 @@ internal static class WatchCommand
         }
     }
 
-    /// <summary>A settings file change: bind and validate; a bad file is logged and ignored (the old settings stay).</summary>
-    private static void Reload(IConfiguration config, CommandArgs a, ServiceRuntime runtime)
+    private static string SettingsFileOf(CommandArgs a) => Path.GetFullPath(a.Value("--config") ?? SettingsLoader.DefaultConfigFile);
+
+    /// <summary>Applies each settings change from now on (see <see cref="Reload"/>); disposing stops it.</summary>
+    private static IDisposable WatchReloads(ConfigurationManager config, CommandArgs a, ServiceRuntime runtime, SettingsReloadGuard guard)
     {
+        var applied = SettingsChanges.Snapshot(config);
+        string file = SettingsFileOf(a);
+        return ChangeToken.OnChange(((IConfiguration)config).GetReloadToken,
+            () => applied = Reload(config, a, runtime, guard, applied, file));
+    }
+
+    /// <summary>
+    /// A settings file change: bind and validate; a file that cannot be parsed (file and parser's
+    /// line) or a bad value (key and allowed range) is logged and ignored, the old settings stay.
+    /// A good one is applied and the changed keys logged. Returns the settings now in force.
+    /// </summary>
+    private static Dictionary<string, string?> Reload(IConfiguration config, CommandArgs a, ServiceRuntime runtime, SettingsReloadGuard guard,
+        Dictionary<string, string?> applied, string file)
+    {
+        if (guard.Take() is { } unreadable)
+        {
+            Log.Error("Settings reload ignored, the previous settings stay in force: {Message}", unreadable);
+            return applied;
+        }
+        var now = SettingsChanges.Snapshot(config);
+        var changes = SettingsChanges.Describe(applied, now);
+        if (changes.Count == 0)
+        {
+            return applied; // saved without a change (or an echo of the same save)
+        }
         try
         {
             var fresh = SettingsLoader.Bind(config);
@@ -210,11 +257,13 @@ internal static class WatchCommand
                 s.Context.Options = fresh;
             }
             runtime.SettingsChanged = true;
-            Log.Information("Settings reloaded");
+            Log.Information("Settings reloaded from {File}: {Changes}", file, string.Join("; ", changes));
+            return now;
         }
         catch (SettingsException e)
         {
-            Log.Error("Settings reload ignored: {Message}", e.Message);
+            Log.Error("Settings reload ignored, the previous settings stay in force: {Message}", e.Message);
+            return applied;
         }
     }
 

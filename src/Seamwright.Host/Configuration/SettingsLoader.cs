@@ -12,18 +12,45 @@ internal static class SettingsLoader
 {
     public static string DefaultConfigFile => Path.Combine(AppContext.BaseDirectory, "config", "appsettings.json");
 
-    public static IConfigurationBuilder AddSeamwrightSources(this IConfigurationBuilder builder, string? configFile, string[] overrides, bool reloadOnChange)
+    /// <summary>
+    /// Adds the sources. A settings file that cannot be parsed stops the load with a
+    /// <see cref="SettingsException"/> naming the file and the parser's line; on a reload
+    /// (<paramref name="reloadFailed"/> given) it is reported there instead and the load is ignored.
+    /// </summary>
+    public static IConfigurationBuilder AddSeamwrightSources(this IConfigurationBuilder builder, string? configFile, string[] overrides, bool reloadOnChange,
+        SettingsReloadGuard? reloadFailed = null)
     {
         string file = Path.GetFullPath(configFile ?? DefaultConfigFile);
         if (configFile is not null && !File.Exists(file))
         {
             throw new SettingsException($"The settings file {file} does not exist (--config).");
         }
-        builder.AddJsonFile(file, optional: configFile is null, reloadOnChange: reloadOnChange);
+        builder.AddJsonFile(s =>
+        {
+            s.Path = file;
+            s.Optional = configFile is null;
+            s.ReloadOnChange = reloadOnChange;
+            s.ResolveFileProvider();
+            s.OnLoadException = ctx =>
+            {
+                string reason = Unreadable(file, ctx.Exception);
+                if (reloadFailed is { Armed: true })
+                {
+                    reloadFailed.Failed(reason);
+                    ctx.Ignore = true;
+                    return;
+                }
+                throw new SettingsException(reason, ctx.Exception);
+            };
+        });
         builder.AddEnvironmentVariables();
         builder.AddCommandLine(overrides);
         return builder;
     }
+
+    /// <summary>"The settings file F is not valid JSON: ... LineNumber: n ..." from the parser's own message.</summary>
+    private static string Unreadable(string file, Exception e) =>
+        $"The settings file {file} cannot be read: {e.GetBaseException().Message}";
 
     public static IConfiguration Build(string? configFile, string[] overrides) =>
         new ConfigurationBuilder().AddSeamwrightSources(configFile, overrides, reloadOnChange: false).Build();
@@ -38,7 +65,8 @@ internal static class SettingsLoader
         }
         catch (InvalidOperationException e)
         {
-            throw new SettingsException("A setting has a value of the wrong type: " + e.Message + (e.InnerException is null ? "" : " (" + e.InnerException.Message + ")"));
+            string allowed = WrongTypeKey(e.Message) is { } key && SettingsValidator.AllowedFor(key) is { } range ? "; allowed: " + range : "";
+            throw new SettingsException("A setting has a value of the wrong type: " + e.Message + (e.InnerException is null ? "" : " (" + e.InnerException.Message + ")") + allowed);
         }
         var errors = SettingsValidator.Check(options);
         if (errors.Count > 0)
@@ -47,6 +75,29 @@ internal static class SettingsLoader
         }
         return options;
     }
+
+    /// <summary>The key in .NET's conversion message ("Failed to convert configuration value 'x' at 'Seamwright:A:B' to type ...").</summary>
+    internal static string? WrongTypeKey(string message)
+    {
+        var m = System.Text.RegularExpressions.Regex.Match(message, @" at '([^']+)'", System.Text.RegularExpressions.RegexOptions.CultureInvariant, TimeSpan.FromSeconds(1));
+        return m.Success ? m.Groups[1].Value : null;
+    }
+}
+
+/// <summary>
+/// The settings file's reload failures while the service runs: armed once the service's
+/// configuration is built, so a file that cannot be parsed at start still stops it.
+/// </summary>
+internal sealed class SettingsReloadGuard
+{
+    private string? _failure;
+
+    public bool Armed { get; set; }
+
+    public void Failed(string reason) => Volatile.Write(ref _failure, reason);
+
+    /// <summary>The failure of the latest load, once (null when it loaded).</summary>
+    public string? Take() => Interlocked.Exchange(ref _failure, null);
 }
 
 /// <summary>Bad arguments or settings (exit code 2).</summary>

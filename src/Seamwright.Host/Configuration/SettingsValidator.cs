@@ -150,8 +150,36 @@ internal static class SettingsValidator
 
     private static string ProfileNames(SeamwrightOptions o) => string.Join(", ", o.Profiles.Keys.Append("default").Distinct(StringComparer.Ordinal));
 
+    [ThreadStatic]
+    private static Dictionary<string, string>? _ranges;
+
+    /// <summary>
+    /// The allowed range of a numeric setting in words ("0 to 3600 seconds"), for a value of the
+    /// wrong type; any profile or root index matches. Null when the key has no range.
+    /// </summary>
+    public static string? AllowedFor(string key)
+    {
+        ArgumentNullException.ThrowIfNull(key);
+        _ranges = new Dictionary<string, string>(StringComparer.OrdinalIgnoreCase);
+        try
+        {
+            var o = new SeamwrightOptions();
+            o.Roots.Add(new RootSettings { Path = "." });
+            Check(o);
+            return _ranges.GetValueOrDefault(Generic(key));
+        }
+        finally
+        {
+            _ranges = null;
+        }
+    }
+
+    private static string Generic(string key) =>
+        System.Text.RegularExpressions.Regex.Replace(key, @"(?<=:(Profiles|Roots):)[^:]+", "*", System.Text.RegularExpressions.RegexOptions.CultureInvariant, TimeSpan.FromSeconds(1));
+
     private static void Range(List<string> e, string key, double value, double min, double max, string unit)
     {
+        _ranges?.TryAdd(Generic(key), $"{min} to {max} {unit}".TrimEnd());
         if (!(value >= min && value <= max))
         {
             e.Add($"{key} is {value}; allowed: {min} to {max} {unit}");

@@ -29,6 +29,12 @@ internal sealed class TrackedSet(string id, DateTime nowUtc)
     public Dictionary<string, TrackedFile> Files { get; } = new(StringComparer.Ordinal);
     public DateTime FirstSeenUtc { get; set; } = nowUtc;
     public DateTime LastChangeUtc { get; set; } = nowUtc;
+    /// <summary>
+    /// What started the pending run: the set's last change, a settings reload or the service
+    /// start that found it out of date. Arrival-to-output counts from here, not from the images'
+    /// first arrival.
+    /// </summary>
+    public DateTime TriggerUtc { get; set; } = nowUtc;
     public SetPhase Phase { get; set; } = SetPhase.Waiting;
     /// <summary>An input changed while the set was queued or running: look again when it returns.</summary>
     public bool ChangedWhileBusy { get; set; }
@@ -195,6 +201,7 @@ internal sealed class RootTracker(int index, RootSession session)
     private void Changed(TrackedSet set, DateTime now, string what)
     {
         set.LastChangeUtc = now;
+        set.TriggerUtc = now;
         switch (set.Phase)
         {
             case SetPhase.Done:
@@ -223,6 +230,7 @@ internal sealed class RootTracker(int index, RootSession session)
             {
                 set.Phase = SetPhase.Waiting;
                 set.FirstSeenUtc = now;
+                set.TriggerUtc = now;
                 Session.Context.Store.SetState(set.Id, SetStates.Stale, inputs.Profile, "settings changed");
                 n++;
             }

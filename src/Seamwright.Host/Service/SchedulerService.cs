@@ -121,7 +121,7 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                 if (ops is not null && result.Outcome.Kind == Pipeline.Processing.SetOutcomeKind.Done
                     && trackers[result.Root].Sets.TryGetValue(result.Outcome.SetId, out var finished))
                 {
-                    ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.LastChangeUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
+                    ops.Metrics.RecordSetOutput(new DateTimeOffset(finished.TriggerUtc, TimeSpan.Zero), new DateTimeOffset(now, TimeSpan.Zero));
                 }
                 trackers[result.Root].Finished(job, result.Outcome, now);
             }

@@ -27,8 +27,15 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
 
     public ServiceOperations(IConfiguration configuration, TimeProvider time)
     {
-        Supervision = configuration.GetSection("Seamwright:Supervision").Get<SupervisionOptions>() ?? new SupervisionOptions();
-        Options = configuration.GetSection("Seamwright:Operations").Get<OperationsOptions>() ?? new OperationsOptions();
+        try
+        {
+            Supervision = configuration.GetSection("Seamwright:Supervision").Get<SupervisionOptions>() ?? new SupervisionOptions();
+            Options = configuration.GetSection("Seamwright:Operations").Get<OperationsOptions>() ?? new OperationsOptions();
+        }
+        catch (InvalidOperationException e)
+        {
+            throw new SettingsException("A setting has a value of the wrong type: " + e.Message + " (allowed values: config/README.md)", e);
+        }
         var problems = Supervision.Validate().Concat(Options.Validate()).ToList();
         if (problems.Count > 0)
         {

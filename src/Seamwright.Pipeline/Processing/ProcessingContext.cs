@@ -47,8 +47,15 @@ public sealed class ProcessingContext
     /// <summary>The run plan of a set of this profile under the current settings: resolved once at the start of each run.</summary>
     public RunPlan PlanFor(string profile) => RunPlan.Resolve(Options, profile, Engine.Name, AlgorithmVersion);
 
-    public string FingerprintFor(string profile) =>
-        SettingsFingerprint.ForSet(Options.Profile(profile), Options.Limits, Engine.Name, AlgorithmVersion);
+    public string FingerprintFor(string profile) => Fingerprint(Options, Engine, profile);
+
+    /// <summary>The settings fingerprint of a profile's sets under these settings and engine (what <see cref="FingerprintFor"/> gives, without a context).</summary>
+    public static string Fingerprint(SeamwrightOptions options, IPairEngine engine, string profile)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(engine);
+        return SettingsFingerprint.ForSet(options.Profile(profile), options.Limits, engine.Name, PipelineVersion * 1000 + engine.AlgorithmVersion);
+    }
 
     /// <summary>True when the ledger says the set's last finished run used these inputs and settings and its manifest exists.</summary>
     public bool IsUpToDate(Sets.SetInputs set)

@@ -52,6 +52,7 @@ public sealed class RootSession : IDisposable
         try
         {
             int swept = shared ? AtomicFile.SweepTemporaries(output, AtomicFile.WriterTagFor(node)) : AtomicFile.SweepTemporaries(output);
+            WatchedRootRecord.Write(output, root.Path);
             var store = StateStore.Open(output, options.State);
             var recovered = store.RecoverInterrupted(node);
             if (shared)
