@@ -41,7 +41,7 @@ public sealed record ManifestAlignment
     /// <summary>True when some images do not fit one plane (a wide or all-round sequence).</summary>
     public required bool NotPlanar { get; init; }
 
-    public required string[] NonPlanarReasons { get; init; }
+    public required string[] NotPlanarReasons { get; init; }
 
     /// <summary>The set model used and why (rotation sets add focal lengths, extent, projection and levelling).</summary>
     public ManifestSetModel? SetModel { get; init; }
@@ -62,7 +62,7 @@ public sealed record ManifestAlignment
             Unplaced = [.. alignment.Images.Where(p => !p.IsPlaced).Select(p => new ManifestUnplaced(names[p.Index], p.Reason ?? "not placed"))],
             Demoted = [.. alignment.Demoted.Select(d => new ManifestDemotedLink(names[d.ImageA], names[d.ImageB], d.Stage, d.Reason))],
             NotPlanar = alignment.NotPlanar,
-            NonPlanarReasons = alignment.NonPlanarReasons,
+            NotPlanarReasons = alignment.NonPlanarReasons,
         };
     }
 

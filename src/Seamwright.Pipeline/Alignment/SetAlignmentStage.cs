@@ -29,7 +29,7 @@ public static class SetAlignmentStage
 {
     public static AlignmentStageResult Run(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
         IReadOnlyList<string> paths, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings,
-        PreviewImageOpener? open = null)
+        PreviewImageOpener? open = null, Report.ReportProvenance? provenance = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(settings);
@@ -45,7 +45,7 @@ public static class SetAlignmentStage
         var reasons = alignment.Images.Select(p => p.IsPlaced ? null : p.Reason ?? "not placed").ToArray();
         open ??= new PreviewFiles(paths).Open;
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
-            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel);
+            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel, provenance);
         var manifest = ManifestAlignment.From(alignment, names) with { SetModel = ManifestSetModel.From(setModel) };
         if (setModel.IsRotation)
         {

@@ -20,7 +20,7 @@ public static class SetVisuals
 
     public static SetVisualOutputs Build(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
         IReadOnlyList<AlignedPair> pairs, SetAlignment alignment, PreviewImageOpener open, PreviewOptions? options = null,
-        Seamwright.Core.Cameras.SetModelResult? setModel = null)
+        Seamwright.Core.Cameras.SetModelResult? setModel = null, ReportProvenance? provenance = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(pairs);
@@ -78,7 +78,11 @@ public static class SetVisuals
             p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B))).ToList();
         var report = new SetReport(setName, runId, fingerprint, alignment.Model.ToString().ToLowerInvariant(), reportImages, reportPairs, preview,
             [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names)],
-            SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names));
+            SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names))
+        {
+            Verdict = ReportVerdict.Judge(alignment, reportPairs, names, provenance?.LeftOut.Count ?? 0),
+            Provenance = provenance,
+        };
         return new SetVisualOutputs(preview, report, ReportHtml.Render(report));
     }
 

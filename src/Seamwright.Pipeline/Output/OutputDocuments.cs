@@ -9,10 +9,10 @@ namespace Seamwright.Pipeline.Output;
 /// <summary>Schema ids of the output files.</summary>
 public static class SchemaIds
 {
-    public const string Sidecar = "seamwright.sidecar/1";
-    public const string TiePoints = "seamwright.tiepoints/1";
-    public const string Manifest = "seamwright.manifest/1";
-    public const string Confidence = "seamwright.confidence/1";
+    public const string Sidecar = "seamwright.sidecar.v1";
+    public const string TiePoints = "seamwright.tiepoints.v1";
+    public const string Manifest = "seamwright.manifest.v1";
+    public const string Confidence = "seamwright.confidence.v1";
 }
 
 /// <summary>The link from one image to a neighbour, as seen from this image.</summary>
@@ -27,7 +27,8 @@ public sealed record SidecarLink
     /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
     public required double? CornerSigmaPx { get; init; }
     public required double? RmsResidualPx { get; init; }
-    public required ulong Seed { get; init; }
+    /// <summary>The pair's 64-bit seed as a decimal string (JSON numbers above 2^53 lose precision in common readers).</summary>
+    public required string Seed { get; init; }
     /// <summary>Tie-point file, relative to the set's output folder; null when none was written.</summary>
     public required string? TiePoints { get; init; }
     public required string[] Reasons { get; init; }
@@ -55,7 +56,8 @@ public sealed record SidecarDocument
     public Seamwright.Pipeline.Alignment.SidecarCamera? Camera { get; init; }
     public required SidecarLink[] Links { get; init; }
     public required string SettingsFingerprint { get; init; }
-    public required ulong BaseSeed { get; init; }
+    /// <summary>The profile's base seed as a decimal string.</summary>
+    public required string BaseSeed { get; init; }
     public required string Engine { get; init; }
     public required string DescriptorVersion { get; init; }
     public required int AlgorithmVersion { get; init; }
@@ -93,6 +95,8 @@ public sealed record ManifestDocument
 {
     public string Schema { get; init; } = SchemaIds.Manifest;
     public required long Run { get; init; }
+    /// <summary>When the run wrote its outputs, UTC, ISO 8601 (not part of any determinism comparison).</summary>
+    public required string Time { get; init; }
     public required string Set { get; init; }
     public required string Profile { get; init; }
     /// <summary>True when the set was processed after its maximum wait without being complete.</summary>
@@ -118,22 +122,28 @@ public sealed record ConfidenceRecord
     public string Schema { get; init; } = SchemaIds.Confidence;
     public required string Kind { get; init; }
     public required long Run { get; init; }
+    /// <summary>When the record was written, UTC, ISO 8601 (like <c>timingsMs</c>, not part of any determinism comparison).</summary>
+    public required string Time { get; init; }
     public required string Set { get; init; }
     public required string ImageA { get; init; }
     public required string? ImageB { get; init; }
     public required string Status { get; init; }
-    public required int InlierCount { get; init; }
-    public required int MatchCount { get; init; }
+    /// <summary>Null for kind "file" (nothing was estimated).</summary>
+    public required int? InlierCount { get; init; }
+    public required int? MatchCount { get; init; }
     /// <summary>3x3 row-major rows mapping A to B (null when none).</summary>
     public required double[][]? Homography { get; init; }
-    public required string MotionModel { get; init; }
+    /// <summary>Null for kind "file".</summary>
+    public required string? MotionModel { get; init; }
     /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
     public required double? CornerSigmaPx { get; init; }
     public required double? RmsResidualPx { get; init; }
     public required ConfidenceConsensus? Consensus { get; init; }
-    public required ulong Seed { get; init; }
+    /// <summary>The pair's 64-bit seed as a decimal string (a JSON number above 2^53 loses precision in common readers); null for kind "file".</summary>
+    public required string? Seed { get; init; }
     public required string[] Reasons { get; init; }
-    public required ConfidenceTimings TimingsMs { get; init; }
+    /// <summary>Null for kind "file".</summary>
+    public required ConfidenceTimings? TimingsMs { get; init; }
     public required string SettingsFingerprint { get; init; }
     /// <summary>The node that made the run; written only when several nodes share the ledger (PostgreSql).</summary>
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]

@@ -9,10 +9,11 @@ namespace Seamwright.Pipeline.Processing;
 /// </summary>
 public sealed class AlignmentStep(ProcessingContext ctx)
 {
-    public AlignmentStageResult Run(SetRun run, PairStageResult pairs)
+    public AlignmentStageResult Run(SetRun run, IReadOnlyList<AnalysedImage> all, PairStageResult pairs, DateTime writtenUtc)
     {
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(pairs);
+        var provenance = Report.ReportProvenanceBuilder.For(run.Set, run.Profile, writtenUtc, ProcessingContext.ToolVersion, SetManifest.BadFiles(all, pairs));
         var images = pairs.Images.Select(g => new AlignedImage(g.Key, g.Analysis!.Size)).ToList();
         var aligned = pairs.Pairs.Select(p => new AlignedPair(p.A, p.B, p.Estimate, p.Analysis.TiePoints)).ToList();
         // The preview decodes every placed image once more, in colour and downscaled: reserve the
@@ -26,6 +27,6 @@ public sealed class AlignmentStep(ProcessingContext ctx)
                 long bytes = 4L * images[i].Size.Width * images[i].Size.Height;
                 using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
                 return files.Open(i, side);
-            });
+            }, provenance);
     }
 }

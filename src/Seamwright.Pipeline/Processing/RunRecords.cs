@@ -11,12 +11,12 @@ public static class RunRecords
     public const string BadFileStatus = "bad-file";
 
     /// <summary>One record per bad or skipped file, then one per pair in plan order.</summary>
-    public static List<ConfidenceRecord> Confidence(SetRun run, IReadOnlyList<AnalysedImage> all, PairStageResult pairs)
+    public static List<ConfidenceRecord> Confidence(SetRun run, IReadOnlyList<AnalysedImage> all, PairStageResult pairs, string time)
     {
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(pairs);
-        var records = SetManifest.BadFiles(all, pairs).Select(b => FileRecord(run, b.Key, b.Reason)).ToList();
-        records.AddRange(pairs.Pairs.Select(p => PairRecord(run, pairs.KeyA(p), pairs.KeyB(p), p)));
+        var records = SetManifest.BadFiles(all, pairs).Select(b => FileRecord(run, b.Key, b.Reason, time)).ToList();
+        records.AddRange(pairs.Pairs.Select(p => PairRecord(run, pairs.KeyA(p), pairs.KeyB(p), p, time)));
         return records;
     }
 
@@ -33,34 +33,37 @@ public static class RunRecords
         return all.Select(i => new FileOutcome(i.File.RootPath, i.File.Size, i.File.MtimeTicks, i.Hash, i.Decoded, i.BadReason)).ToList();
     }
 
-    private static ConfidenceRecord FileRecord(SetRun run, string key, string reason) => new()
+    /// <summary>An unusable input file: nothing was estimated, so every figure is null (never 0, which reads as perfect).</summary>
+    private static ConfidenceRecord FileRecord(SetRun run, string key, string reason, string time) => new()
     {
         Kind = "file",
         Run = run.RunId,
+        Time = time,
         Set = run.SetId,
         ImageA = key,
         ImageB = null,
         Status = BadFileStatus,
-        InlierCount = 0,
-        MatchCount = 0,
+        InlierCount = null,
+        MatchCount = null,
         Homography = null,
-        MotionModel = "",
-        CornerSigmaPx = 0,
-        RmsResidualPx = 0,
+        MotionModel = null,
+        CornerSigmaPx = null,
+        RmsResidualPx = null,
         Consensus = null,
-        Seed = 0,
+        Seed = null,
         Reasons = [reason],
-        TimingsMs = new ConfidenceTimings(0, 0, 0, 0, 0),
+        TimingsMs = null,
         SettingsFingerprint = run.Fingerprint,
     };
 
-    private static ConfidenceRecord PairRecord(SetRun run, string a, string b, PairResult pr)
+    private static ConfidenceRecord PairRecord(SetRun run, string a, string b, PairResult pr, string time)
     {
         var e = pr.Estimate;
         return new ConfidenceRecord
         {
             Kind = "pair",
             Run = run.RunId,
+            Time = time,
             Set = run.SetId,
             ImageA = a,
             ImageB = b,
@@ -72,7 +75,7 @@ public static class RunRecords
             CornerSigmaPx = OutputNumbers.FiniteOrNull(e.CornerSigmaPx),
             RmsResidualPx = OutputNumbers.FiniteOrNull(e.RmsResidualPx),
             Consensus = new ConfidenceConsensus(e.Consensus.Sampling, e.Consensus.Refined, e.Consensus.Final, e.Consensus.RunnerUp, e.LpCount, e.Iterations),
-            Seed = e.Seed,
+            Seed = e.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture),
             Reasons = e.Reasons,
             TimingsMs = new ConfidenceTimings(e.TimingsMs.Sampling, e.TimingsMs.Refinement, e.TimingsMs.Polish, e.TimingsMs.Total, pr.PairMs),
             SettingsFingerprint = run.Fingerprint,

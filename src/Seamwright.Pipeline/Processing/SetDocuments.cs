@@ -112,7 +112,7 @@ public static class SetDocuments
             Camera = aligned.Cameras[i],
             Links = links.ToArray(),
             SettingsFingerprint = run.Fingerprint,
-            BaseSeed = run.Profile.Estimation.Seed,
+            BaseSeed = run.Profile.Estimation.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture),
             Engine = stamp.Engine,
             DescriptorVersion = stamp.DescriptorVersion,
             AlgorithmVersion = stamp.AlgorithmVersion,
@@ -135,7 +135,7 @@ public static class SetDocuments
             MatchCount = est.MatchCount,
             CornerSigmaPx = OutputNumbers.FiniteOrNull(est.CornerSigmaPx),
             RmsResidualPx = OutputNumbers.FiniteOrNull(est.RmsResidualPx),
-            Seed = est.Seed,
+            Seed = est.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture),
             TiePoints = ties,
             Reasons = est.Reasons,
         };

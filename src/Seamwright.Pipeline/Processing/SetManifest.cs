@@ -29,7 +29,7 @@ public static class SetManifest
     }
 
     public static ManifestDocument Build(SetRun run, OutputStamp stamp, IReadOnlyList<AnalysedImage> all, PairStageResult pairs,
-        RunSummary summary, ManifestAlignment alignment, IReadOnlyList<ManifestEntry> entries)
+        RunSummary summary, ManifestAlignment alignment, IReadOnlyList<ManifestEntry> entries, string time)
     {
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(stamp);
@@ -39,6 +39,7 @@ public static class SetManifest
         return new ManifestDocument
         {
             Run = run.RunId,
+            Time = time,
             Set = run.SetId,
             Profile = run.Set.Profile,
             Incomplete = run.Incomplete,

@@ -70,8 +70,9 @@ public sealed class SetProcessor(ProcessingContext ctx)
     {
         var images = _images.Run(run, cancel);
         var pairs = _pairs.Run(run, images, cancel);
-        var aligned = _alignment.Run(run, pairs);
-        return _publisher.Publish(run, images, pairs, aligned);
+        var writtenUtc = DateTime.UtcNow; // recorded (manifest, confidence log, report), never compared
+        var aligned = _alignment.Run(run, images, pairs, writtenUtc);
+        return _publisher.Publish(run, images, pairs, aligned, writtenUtc);
     }
 
     /// <summary>Resolves the run plan once (the settings as they are now) and opens the run in the ledger.</summary>

@@ -13,14 +13,15 @@ namespace Seamwright.Pipeline.Processing;
 /// </summary>
 public sealed class SetPublisher(ProcessingContext ctx)
 {
-    public SetOutcome Publish(SetRun run, IReadOnlyList<AnalysedImage> all, PairStageResult pairs, AlignmentStageResult aligned)
+    public SetOutcome Publish(SetRun run, IReadOnlyList<AnalysedImage> all, PairStageResult pairs, AlignmentStageResult aligned, DateTime writtenUtc)
     {
+        string time = OutputNumbers.UtcTime(writtenUtc);
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(aligned);
         var stamp = OutputStamp.Of(ctx);
         string setFolder = OutputLayout.SetFolder(ctx.OutputRoot, run.SetId);
         var entries = WriteAll(setFolder, SetDocuments.Build(run, stamp, pairs, aligned));
-        var records = RunRecords.Confidence(run, all, pairs);
+        var records = RunRecords.Confidence(run, all, pairs, time);
         if (ctx.OutputNode is { } node)
         {
             records = records.Select(r => r with { Node = node }).ToList();
@@ -32,7 +33,7 @@ public sealed class SetPublisher(ProcessingContext ctx)
         }
         ctx.Log.Append(records);
         var summary = SetManifest.Summary(run, all, pairs);
-        var manifest = SetManifest.Build(run, stamp, all, pairs, summary, aligned.Manifest, entries) with { Node = ctx.OutputNode };
+        var manifest = SetManifest.Build(run, stamp, all, pairs, summary, aligned.Manifest, entries, time) with { Node = ctx.OutputNode };
         WriteManifestLast(setFolder, entries, manifest);
         RemoveUnlisted(setFolder, manifest, run.Set);
         ctx.Store.FinishRun(run.RunId, run.SetId, run.Fingerprint, run.Set.InputsDigest(), summary, RunRecords.PairRows(pairs), RunRecords.FileOutcomes(all));

@@ -29,7 +29,8 @@ public static class AlignmentSummary
             facts.Add(new("Refinement iterations", res.Iterations.ToString(CultureInfo.InvariantCulture)));
         }
         facts.Add(new("Links left out", alignment.Demoted.Length.ToString(CultureInfo.InvariantCulture)));
-        facts.Add(new("Fits one plane", alignment.NotPlanar ? "no" : "yes"));
+        // Judged only over placed images: with fewer than two placed, nothing was drawn on a plane.
+        facts.Add(new("Fits one plane", alignment.PlacedCount < 2 ? "not judged (fewer than two images placed)" : alignment.NotPlanar ? "no" : "yes"));
         return facts;
     }
 

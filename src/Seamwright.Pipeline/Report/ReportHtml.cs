@@ -21,6 +21,7 @@ public static class ReportHtml
         sb.Append("<style>").Append(ReportAssets.Css).Append("</style></head>\n<body>\n");
         Header(sb, report);
         sb.Append("<main>\n");
+        ReportVerdict.Render(sb, report);
         if (report.Warnings.Count > 0)
         {
             sb.Append("<section class=\"warn\"><h2>Look at these</h2><ul>");

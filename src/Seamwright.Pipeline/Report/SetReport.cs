@@ -45,4 +45,11 @@ public sealed record SetReport(
     IReadOnlyList<ReportPair> Pairs,
     byte[]? PreviewJpeg,
     IReadOnlyList<ReportFact> Facts,
-    IReadOnlyList<string> Warnings);
+    IReadOnlyList<string> Warnings)
+{
+    /// <summary>The opening verdict in words (null in reports built without one).</summary>
+    public VerdictText? Verdict { get; init; }
+
+    /// <summary>Input folder, time, tool version, settings and left-out files (null when not known).</summary>
+    public ReportProvenance? Provenance { get; init; }
+}

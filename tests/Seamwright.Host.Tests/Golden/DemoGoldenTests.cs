@@ -12,8 +12,10 @@ namespace Seamwright.Host.Tests.Golden;
 /// <summary>
 /// Guards the demo outputs byte for byte: the main job (`run`) on `sample-folder/`, in-process,
 /// into a temporary output root; every output file's SHA-256 (relative path -> digest) is compared
-/// with the committed `demo-outputs.json`. Normalised before hashing, because they measure time:
-/// the `timingsMs` object of each `confidence.jsonl` record. Left out: `.seamwright/` (the
+/// with the committed `demo-outputs.json`. Normalised before hashing, because they measure time
+/// or name where the run happened: the `timingsMs` object and the `time` of each
+/// `confidence.jsonl` record; the manifests' `time` and the SHA-256 they list for `report.html`;
+/// in `report.html` what `ReportVerdict` marks volatile (the input folder and the time). Left out: `.seamwright/` (the
 /// ledger, logs and feature cache: internal state, not outputs). Everything else (sidecars, tie
 /// points, manifests, preview, report) is hashed as written.
 /// A change that alters results on purpose regenerates the golden in the same commit:
@@ -74,7 +76,10 @@ public sealed class DemoGoldenTests(ITestOutputHelper output)
             {
                 continue;
             }
-            byte[] bytes = rel == "confidence.jsonl" ? WithoutTimings(File.ReadAllLines(full)) : File.ReadAllBytes(full);
+            byte[] bytes = rel == "confidence.jsonl" ? WithoutTimings(File.ReadAllLines(full))
+                : rel.EndsWith("/seam-manifest.json", StringComparison.Ordinal) ? ManifestWithoutTime(File.ReadAllText(full))
+                : rel.EndsWith("/report.html", StringComparison.Ordinal) ? ReportWithoutVolatile(File.ReadAllText(full))
+                : File.ReadAllBytes(full);
             hashes[rel] = Convert.ToHexStringLower(SHA256.HashData(bytes));
         }
         return hashes;
@@ -88,10 +93,30 @@ public sealed class DemoGoldenTests(ITestOutputHelper output)
         {
             var node = JsonNode.Parse(line)!.AsObject();
             node.Remove("timingsMs");
+            node.Remove("time");
             sb.Append(node.ToJsonString()).Append('\n');
         }
         return Encoding.UTF8.GetBytes(sb.ToString());
     }
+
+    private static byte[] ManifestWithoutTime(string json)
+    {
+        var node = JsonNode.Parse(json)!.AsObject();
+        node.Remove("time");
+        foreach (var f in node["files"]!.AsArray())
+        {
+            if (f!["kind"]!.GetValue<string>() == "report")
+            {
+                f["sha256"] = "";
+            }
+        }
+        return Encoding.UTF8.GetBytes(node.ToJsonString());
+    }
+
+    private static byte[] ReportWithoutVolatile(string html) =>
+        Encoding.UTF8.GetBytes(System.Text.RegularExpressions.Regex.Replace(html,
+            System.Text.RegularExpressions.Regex.Escape(Seamwright.Pipeline.Report.ReportVerdict.VolatileStart) + ".*?" + System.Text.RegularExpressions.Regex.Escape(Seamwright.Pipeline.Report.ReportVerdict.VolatileEnd),
+            "", System.Text.RegularExpressions.RegexOptions.Singleline | System.Text.RegularExpressions.RegexOptions.CultureInvariant, TimeSpan.FromSeconds(10)));
 
     private static string Render(SortedDictionary<string, string> hashes) =>
         JsonSerializer.Serialize(hashes, new JsonSerializerOptions { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping }) + "\n";

@@ -7,9 +7,9 @@ public class ConfidenceLogTests
 {
     private static ConfidenceRecord Record(long run, string a) => new()
     {
-        Kind = "pair", Run = run, Set = "s", ImageA = a, ImageB = "b", Status = "accepted", InlierCount = 10, MatchCount = 12,
+        Kind = "pair", Run = run, Time = "2026-12-01T00:00:00.000Z", Set = "s", ImageA = a, ImageB = "b", Status = "accepted", InlierCount = 10, MatchCount = 12,
         Homography = [[1, 0, 0], [0, 1, 0], [0, 0, 1]], MotionModel = "homography", CornerSigmaPx = 0.1, RmsResidualPx = 0.5,
-        Consensus = new ConfidenceConsensus(9, 10, 10, 0, 3, 100), Seed = 7, Reasons = [], TimingsMs = new ConfidenceTimings(1, 2, 3, 6, 7),
+        Consensus = new ConfidenceConsensus(9, 10, 10, 0, 3, 100), Seed = "7", Reasons = [], TimingsMs = new ConfidenceTimings(1, 2, 3, 6, 7),
         SettingsFingerprint = "abc",
     };
 
@@ -19,7 +19,7 @@ public class ConfidenceLogTests
         using var dir = new ScratchFolder();
         var log = new ConfidenceLog(dir.Path);
         log.Append([Record(1, "a1"), Record(1, "a2")]);
-        File.AppendAllText(log.Path, "{\"schema\":\"seamwright.confidence/1\",\"kind\":\"pa"); // a crash mid-append
+        File.AppendAllText(log.Path, "{\"schema\":\"seamwright.confidence.v1\",\"kind\":\"pa"); // a crash mid-append
         var reopened = new ConfidenceLog(dir.Path);
         Assert.True(reopened.DroppedBytes > 0);
         var all = ConfidenceLog.ReadAll(reopened.Path);

@@ -65,7 +65,58 @@ public class OutputSchemaTests
         {
             var rec = JsonDocument.Parse(line).RootElement;
             Conforms(confidenceSchema, rec, "confidence " + rec.GetProperty("kind").GetString());
-            Conforms(confidenceSchema.GetProperty("properties").GetProperty("timingsMs"), rec.GetProperty("timingsMs"), "confidence timings");
+            if (rec.GetProperty("kind").GetString() == "pair")
+            {
+                Conforms(confidenceSchema.GetProperty("properties").GetProperty("timingsMs"), rec.GetProperty("timingsMs"), "confidence timings");
+            }
+        }
+    }
+
+    [Fact]
+    public void Outputs_BadFileSeedsTimeAndSchemaIds_NullForUnknownStringSeedsUtcTimeOneSpelling()
+    {
+        using var dir = new ScratchFolder();
+        TestImages.WriteSet(dir.Sub("in/s"), 3, 1);
+        File.WriteAllText(dir.Sub("in/s/bad.png"), "not an image");
+        using var session = Sessions.Open(dir.Sub("in"), dir.Sub("out"), Sessions.Options());
+        var before = DateTime.UtcNow.AddSeconds(-1);
+        new SetProcessor(session.Context).Process(session.Catalog.Discover().Single(), false, CancellationToken.None);
+        var after = DateTime.UtcNow.AddSeconds(1);
+        string setOut = dir.Sub("out/s");
+
+        var lines = File.ReadAllLines(Path.Combine(dir.Sub("out"), ConfidenceLog.FileName)).Select(l => JsonDocument.Parse(l).RootElement).ToList();
+        var bad = Assert.Single(lines, r => r.GetProperty("kind").GetString() == "file");
+        foreach (string unknown in new[] { "inlierCount", "matchCount", "motionModel", "cornerSigmaPx", "rmsResidualPx", "seed", "timingsMs", "consensus", "homography" })
+        {
+            Assert.Equal(JsonValueKind.Null, bad.GetProperty(unknown).ValueKind); // never 0, which reads as perfect
+        }
+        foreach (var r in lines)
+        {
+            string time = r.GetProperty("time").GetString()!;
+            Assert.EndsWith("Z", time, StringComparison.Ordinal);
+            var t = DateTime.Parse(time, System.Globalization.CultureInfo.InvariantCulture, System.Globalization.DateTimeStyles.AdjustToUniversal);
+            Assert.InRange(t, before, after);
+        }
+        var pair = lines.First(r => r.GetProperty("kind").GetString() == "pair");
+        Assert.Equal(JsonValueKind.String, pair.GetProperty("seed").ValueKind);
+        Assert.True(ulong.TryParse(pair.GetProperty("seed").GetString(), out _));
+
+        var sidecar = JsonDocument.Parse(File.ReadAllText(Path.Combine(setOut, "img001.png.seam.json"))).RootElement;
+        Assert.Equal(JsonValueKind.String, sidecar.GetProperty("baseSeed").ValueKind);
+        Assert.Equal(JsonValueKind.String, sidecar.GetProperty("links")[0].GetProperty("seed").ValueKind);
+        var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(setOut, OutputLayout.ManifestName))).RootElement;
+        Assert.InRange(DateTime.Parse(manifest.GetProperty("time").GetString()!, System.Globalization.CultureInfo.InvariantCulture,
+            System.Globalization.DateTimeStyles.AdjustToUniversal), before, after);
+        Assert.Equal(ProcessingContext.ToolVersion, manifest.GetProperty("toolVersion").GetString());
+        Assert.True(manifest.GetProperty("alignment").TryGetProperty("notPlanarReasons", out _));
+
+        // One spelling: each file names its schema exactly as the schema file's $id (and its file name).
+        foreach (var (name, doc) in new[] { ("sidecar", sidecar), ("manifest", manifest), ("confidence", pair),
+                     ("tiepoints", JsonDocument.Parse(File.ReadAllText(Directory.GetFiles(Path.Combine(setOut, OutputLayout.TiesFolder)).First())).RootElement) })
+        {
+            string id = Schema($"seamwright.{name}.v1.schema.json").GetProperty("$id").GetString()!;
+            Assert.Equal($"seamwright.{name}.v1", id);
+            Assert.Equal(id, doc.GetProperty("schema").GetString());
         }
     }
 }

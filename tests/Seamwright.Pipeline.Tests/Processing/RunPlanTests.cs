@@ -71,12 +71,12 @@ public class RunPlanTests
         foreach (string image in manifest.Images)
         {
             var sidecar = OutputJson.ReadSidecar(Path.Combine(setOut, OutputLayout.SidecarRelative(image)));
-            Assert.Equal((run, fingerprint, seed), (sidecar.Run, sidecar.SettingsFingerprint, sidecar.BaseSeed));
+            Assert.Equal((run, fingerprint, seed.ToString(System.Globalization.CultureInfo.InvariantCulture)), (sidecar.Run, sidecar.SettingsFingerprint, sidecar.BaseSeed));
         }
         var records = ConfidenceLog.ReadAll(Path.Combine(outRoot, ConfidenceLog.FileName)).Where(r => r.Run == run).ToList();
         Assert.NotEmpty(records);
         Assert.All(records, r => Assert.Equal(fingerprint, r.SettingsFingerprint));
-        Assert.All(records, r => Assert.Equal(PairSeed.Derive(seed, r.ImageA, r.ImageB!), r.Seed));
+        Assert.All(records, r => Assert.Equal(PairSeed.Derive(seed, r.ImageA, r.ImageB!).ToString(System.Globalization.CultureInfo.InvariantCulture), r.Seed));
     }
 
     /// <summary>The checksum engine, holding every image analysis until <see cref="Open"/> is set.</summary>

@@ -64,14 +64,18 @@ public class SetDocumentsTests
         var entries = new[] { new ManifestEntry("z.json", "sidecar", "00"), new ManifestEntry("a.json", "sidecar", "11") };
 
         var summary = SetManifest.Summary(run, all, pairs);
-        var manifest = SetManifest.Build(run, Stamp, all, pairs, summary, null!, entries);
-        var records = RunRecords.Confidence(run, all, pairs);
+        var manifest = SetManifest.Build(run, Stamp, all, pairs, summary, null!, entries, "2026-01-01T00:00:00Z");
+        var records = RunRecords.Confidence(run, all, pairs, "2026-01-01T00:00:00Z");
 
         Assert.Equal((3, 2, 2, 1, 0, 1, true), (summary.Images, summary.BadFiles, summary.Pairs, summary.Accepted, summary.Weak, summary.Rejected, summary.Incomplete));
         Assert.Equal(new[] { "x.png", "c.png" }, manifest.Skipped.Select(s => s.Image));
         Assert.Equal(new[] { "a.json", "z.json" }, manifest.Files.Select(f => f.Path));
         Assert.Equal(new[] { "file", "file", "pair", "pair" }, records.Select(r => r.Kind));
         Assert.Equal(RunRecords.BadFileStatus, records[0].Status);
+        // a bad file has no figures: null, never 0 (which reads as perfect)
+        Assert.Equal((null, null, null, null, null), (records[0].InlierCount, records[0].MatchCount, records[0].RmsResidualPx, records[0].Seed, records[0].TimingsMs));
+        Assert.All(records, r => Assert.Equal("2026-01-01T00:00:00Z", r.Time));
+        Assert.Equal("2026-01-01T00:00:00Z", manifest.Time);
         Assert.All(records, r => Assert.Equal("fp0123", r.SettingsFingerprint));
         Assert.Equal(new[] { "accepted", "rejected" }, RunRecords.PairRows(pairs).Select(r => r.Status));
     }
