@@ -197,6 +197,7 @@ internal sealed class NodeCluster : IDisposable
                 {
                     o.Remove("run");
                     o.Remove("node");
+                    o.Remove("time"); // the UTC time the manifest or sidecar was written
                     if (o["files"] is System.Text.Json.Nodes.JsonArray files)
                     {
                         // digests of files that name the run
@@ -210,7 +211,11 @@ internal sealed class NodeCluster : IDisposable
             }
             else if (f.EndsWith(".html", StringComparison.Ordinal))
             {
-                text = System.Text.RegularExpressions.Regex.Replace(System.Text.Encoding.UTF8.GetString(bytes), "<code>[0-9]+</code>", "<code>RUN</code>");
+                // run ids, and the verdict's input folder and written time (marked volatile by the report)
+                text = System.Text.Encoding.UTF8.GetString(bytes);
+                text = System.Text.RegularExpressions.Regex.Replace(text, "<!--volatile-->.*?<!--/volatile-->", "VOLATILE", System.Text.RegularExpressions.RegexOptions.Singleline);
+                text = System.Text.RegularExpressions.Regex.Replace(text, "<code>[0-9]+</code>", "<code>RUN</code>");
+                text = System.Text.RegularExpressions.Regex.Replace(text, "<dd>[0-9]+, written", "<dd>RUN, written");
             }
             else
             {
@@ -229,7 +234,7 @@ internal sealed class NodeCluster : IDisposable
         {
             if (r.Run == newestRun(r.Set))
             {
-                var blank = r with { Run = 0, Node = null, TimingsMs = new ConfidenceTimings(0, 0, 0, 0, 0) };
+                var blank = r with { Run = 0, Node = null, Time = "", TimingsMs = new ConfidenceTimings(0, 0, 0, 0, 0) };
                 result[$"{r.Set}|{r.ImageA}|{r.ImageB}"] = OutputJson.ConfidenceLine(blank);
             }
         }
