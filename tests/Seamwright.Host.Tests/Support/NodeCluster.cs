@@ -216,6 +216,7 @@ internal sealed class NodeCluster : IDisposable
                 text = System.Text.RegularExpressions.Regex.Replace(text, "<!--volatile-->.*?<!--/volatile-->", "VOLATILE", System.Text.RegularExpressions.RegexOptions.Singleline);
                 text = System.Text.RegularExpressions.Regex.Replace(text, "<code>[0-9]+</code>", "<code>RUN</code>");
                 text = System.Text.RegularExpressions.Regex.Replace(text, "<dd>[0-9]+, written", "<dd>RUN, written");
+                text = System.Text.RegularExpressions.Regex.Replace(text, "run [0-9]+(?=<)", "run RUN");
             }
             else
             {
