@@ -9,7 +9,11 @@ internal sealed record WatcherState(string Root, long MissedEvents, int Recreate
 /// (its event may still be in flight) clears it. A suspect still unreported after the grace
 /// period is a missed event: the watcher of that root went deaf (buffer overflow, dead inotify
 /// thread, dropped share: docs/RELIABILITY.md), so it is recreated; the rescan already picked the
-/// change up. Thread-safe; the clock is injected.
+/// change up. Recreating a root's watcher clears all that root's suspects, the younger ones too:
+/// they were recorded under the old watcher, and the new one cannot report changes that predate
+/// it (otherwise one silent spell whose changes span two rescans would recreate it twice). A path
+/// the watcher reported less than the grace period before a rescan finds it is not a suspect (the
+/// event beat the rescan). Thread-safe; the clock is injected.
 /// </summary>
 internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvider time, TimeSpan grace)
 {
@@ -18,6 +22,7 @@ internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvi
 
     private readonly Lock _gate = new();
     private readonly Dictionary<(int Root, string Path), DateTimeOffset> _suspects = [];
+    private readonly Dictionary<(int Root, string Path), DateTimeOffset> _reported = [];
     private readonly long[] _missed = new long[roots.Count];
     private readonly int[] _recreated = new int[roots.Count];
     private readonly DateTimeOffset?[] _lastMissed = new DateTimeOffset?[roots.Count];
@@ -26,27 +31,38 @@ internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvi
     /// <summary>A periodic rescan found this path added or changed.</summary>
     public void Suspect(int root, string path)
     {
+        var now = time.GetUtcNow();
         lock (_gate)
         {
-            _suspects.TryAdd((root, path), time.GetUtcNow());
+            if (_reported.TryGetValue((root, path), out var at) && now - at < grace)
+            {
+                return;
+            }
+            _suspects.TryAdd((root, path), now);
         }
     }
 
     /// <summary>The watcher reported this path (any event).</summary>
     public void Reported(int root, string path)
     {
+        var now = time.GetUtcNow();
         lock (_gate)
         {
             _suspects.Remove((root, path));
+            _reported[(root, path)] = now;
         }
     }
 
-    /// <summary>Roots whose watcher missed a change past the grace period, with the count and one example path; their suspects are cleared and the recreation counted.</summary>
+    /// <summary>Roots whose watcher missed a change past the grace period, with the count and one example path; all their suspects are cleared and the recreation counted.</summary>
     public IReadOnlyList<(int Root, int Missed, string Example)> Due()
     {
         var now = time.GetUtcNow();
         lock (_gate)
         {
+            foreach (var old in _reported.Where(kv => now - kv.Value >= grace).Select(kv => kv.Key).ToList())
+            {
+                _reported.Remove(old);
+            }
             var due = _suspects.Where(kv => now - kv.Value >= grace).Select(kv => kv.Key).ToList();
             var result = new List<(int, int, string)>();
             foreach (var group in due.GroupBy(k => k.Root).OrderBy(g => g.Key))
@@ -58,7 +74,7 @@ internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvi
                 _lastMissed[group.Key] = now;
                 _lastPath[group.Key] = example;
                 result.Add((group.Key, n, example));
-                foreach (var k in group)
+                foreach (var k in _suspects.Keys.Where(k => k.Root == group.Key).ToList())
                 {
                     _suspects.Remove(k);
                 }
