@@ -59,11 +59,11 @@ internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvi
         var now = time.GetUtcNow();
         lock (_gate)
         {
-            foreach (var old in _reported.Where(kv => now - kv.Value >= grace).Select(kv => kv.Key).ToList())
+            foreach (var old in OlderThanGrace(_reported, now))
             {
                 _reported.Remove(old);
             }
-            var due = _suspects.Where(kv => now - kv.Value >= grace).Select(kv => kv.Key).ToList();
+            var due = OlderThanGrace(_suspects, now);
             var result = new List<(int, int, string)>();
             foreach (var group in due.GroupBy(k => k.Root).OrderBy(g => g.Key))
             {
@@ -82,6 +82,9 @@ internal sealed class MissedEventDetector(IReadOnlyList<string> roots, TimeProvi
             return result;
         }
     }
+
+    private List<(int Root, string Path)> OlderThanGrace(Dictionary<(int Root, string Path), DateTimeOffset> seen, DateTimeOffset now) =>
+        seen.Where(kv => now - kv.Value >= grace).Select(kv => kv.Key).ToList();
 
     public IReadOnlyList<WatcherState> States()
     {
