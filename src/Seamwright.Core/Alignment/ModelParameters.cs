@@ -4,18 +4,18 @@ using Seamwright.Core.Geometry;
 namespace Seamwright.Core.Alignment;
 
 /// <summary>
-/// Parameters of a transform in one motion model, with m33 fixed to 1: translation (tx, ty),
-/// similarity (a, b, tx, ty) for [[a, -b, tx], [b, a, ty]], affine (m11..m23), homography (m11..m32).
+/// Parameters of a transform in one motion model, with m33 fixed to 1, as its family defines them
+/// (<see cref="MotionFamily"/>: e.g. similarity (a, b, tx, ty) for [[a, -b, tx], [b, a, ty]]).
 /// </summary>
 internal static class ModelParameters
 {
-    public static int Count(MotionModel model) => ModelParameterization.Dof(model);
+    public static int Count(MotionModel model) => MotionFamily.Of(model).ParameterCount;
 
     /// <summary>Nearest parameters of the model to a transform (the transform is scaled to m33 = 1 first).</summary>
     public static void FromTransform(MotionModel model, Transform2D t, Span<double> p) =>
-        ModelParameterization.ToParameters(model, t.Normalized(), p);
+        MotionFamily.Of(model).ToParameters(t.Normalized(), p);
 
-    public static Transform2D ToTransform(MotionModel model, ReadOnlySpan<double> p) => ModelParameterization.FromParameters(model, p);
+    public static Transform2D ToTransform(MotionModel model, ReadOnlySpan<double> p) => MotionFamily.Of(model).FromParameters(p);
 
     /// <summary>
     /// Derivative of the mapped point t(x, y) with respect to the parameters: row 0 (u) into du,
@@ -27,7 +27,7 @@ internal static class ModelParameters
         double iw = 1 / w;
         double u = (t.M11 * x + t.M12 * y + t.M13) * iw;
         double v = (t.M21 * x + t.M22 * y + t.M23) * iw;
-        ModelParameterization.FillDerivatives(model, iw, x * iw, y * iw, u, v, du, dv);
+        MotionFamily.Of(model).FillDerivatives(iw, x * iw, y * iw, u, v, du, dv);
     }
 
     /// <summary>The 2x2 Jacobian of t at (x, y) with respect to the point: (a, b; c, d).</summary>

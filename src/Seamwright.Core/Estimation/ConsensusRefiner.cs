@@ -112,7 +112,7 @@ public static class ConsensusRefiner
         }
         int before = DiscConsensus.Count(matches, initial, threshold);
         int n = matches.Length;
-        int minimum = PolygonInequalities.ParametersOf(model) / 2;
+        int minimum = MotionFamily.Of(model).ParameterCount / 2;
         if (n <= before)
         {
             return new ConsensusRefinement(initial, before, before, 0, "every match is already an inlier");

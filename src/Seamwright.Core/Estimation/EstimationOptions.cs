@@ -12,7 +12,7 @@ public sealed record EstimationOptions
     public static EstimationOptions Default { get; } = new();
 
     /// <summary>Motion model family. Default homography (docs/DESIGN.md stage 6).</summary>
-    public MotionModel Model { get; init; } = MotionModel.Homography;
+    public MotionModel Model { get; init; } = MotionFamily.Homography.Model;
 
     /// <summary>
     /// Inlier threshold on the forward transfer error, pixels. Default 3 px: the evaluation threshold

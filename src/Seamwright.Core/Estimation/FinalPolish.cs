@@ -32,7 +32,7 @@ internal static class FinalPolish
 
     public static PolishResult Run(MotionModel model, ReadOnlySpan<Correspondence> matches, Transform2D initial, ImageSize sizeA, double threshold, int maxRounds, double tolerance)
     {
-        int minimal = Quality.PairDecision.MinimalSize(model);
+        int minimal = MotionFamily.Of(model).MinimalSampleSize;
         var current = initial;
         var inliers = TransferError.InlierIndices(current, matches, threshold);
         int floor = Math.Max(minimal, inliers.Length - (int)Math.Floor(tolerance * inliers.Length));

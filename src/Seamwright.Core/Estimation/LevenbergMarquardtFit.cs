@@ -26,7 +26,8 @@ public static class LevenbergMarquardtFit
 
     public static LeastSquaresFit Fit(MotionModel model, ReadOnlySpan<Correspondence> data, Transform2D initial, ReadOnlySpan<(double X, double Y)> corners)
     {
-        int dof = ModelParameterization.Dof(model);
+        var family = MotionFamily.Of(model);
+        int dof = family.ParameterCount;
         var (n1, n2) = HartleyNormalization.ForMatches(data);
         var pts = new (double X, double Y, double U, double V)[data.Length];
         for (int i = 0; i < data.Length; i++)
@@ -37,8 +38,8 @@ public static class LevenbergMarquardtFit
         }
         var hn = (n2.Matrix * initial * n1.InverseMatrix).Normalized();
         var p = new double[dof];
-        ModelParameterization.ToParameters(model, hn, p);
-        double cost = Cost(model, p, pts);
+        family.ToParameters(hn, p);
+        double cost = Cost(family, p, pts);
         var jtj = new double[dof * dof];
         var jtr = new double[dof];
         var trial = new double[dof];
@@ -48,7 +49,7 @@ public static class LevenbergMarquardtFit
         {
             for (; iterations < MaxIterations; iterations++)
             {
-                Normal(model, p, pts, jtj, jtr);
+                Normal(family, p, pts, jtj, jtr);
                 bool improved = false;
                 while (lambda < 1e12)
                 {
@@ -59,7 +60,7 @@ public static class LevenbergMarquardtFit
                     {
                         trial[i] = p[i] + delta[i];
                     }
-                    double trialCost = Cost(model, trial, pts);
+                    double trialCost = Cost(family, trial, pts);
                     if (trialCost < cost)
                     {
                         double decrease = cost - trialCost;
@@ -77,20 +78,20 @@ public static class LevenbergMarquardtFit
                 }
             }
         }
-        var fitted = ModelParameterization.FromParameters(model, p);
+        var fitted = family.FromParameters(p);
         var transform = (n2.InverseMatrix * fitted * n1.Matrix).Normalized();
         double sse = 0;
         foreach (ref readonly var m in data)
         {
             sse += TransferError.ForwardSquared(transform, m);
         }
-        double sigma = CornerSigma(model, p, pts, n1, n2, corners);
+        double sigma = CornerSigma(family, p, pts, n1, n2, corners);
         return new LeastSquaresFit(transform, sse, iterations, sigma);
     }
 
-    private static double Cost(MotionModel model, ReadOnlySpan<double> p, (double X, double Y, double U, double V)[] pts)
+    private static double Cost(MotionFamily family, ReadOnlySpan<double> p, (double X, double Y, double U, double V)[] pts)
     {
-        var h = ModelParameterization.FromParameters(model, p);
+        var h = family.FromParameters(p);
         double sum = 0;
         foreach (var (x, y, u, v) in pts)
         {
@@ -106,17 +107,17 @@ public static class LevenbergMarquardtFit
         return double.IsFinite(sum) ? sum : double.PositiveInfinity;
     }
 
-    private static void Normal(MotionModel model, ReadOnlySpan<double> p, (double X, double Y, double U, double V)[] pts, double[] jtj, double[] jtr)
+    private static void Normal(MotionFamily family, ReadOnlySpan<double> p, (double X, double Y, double U, double V)[] pts, double[] jtj, double[] jtr)
     {
         int dof = p.Length;
         Array.Clear(jtj);
         Array.Clear(jtr);
-        var h = ModelParameterization.FromParameters(model, p);
+        var h = family.FromParameters(p);
         Span<double> du = stackalloc double[8];
         Span<double> dv = stackalloc double[8];
         foreach (var (x, y, u0, v0) in pts)
         {
-            if (!ModelParameterization.MapWithJacobian(model, h, x, y, out double u, out double v, du, dv))
+            if (!family.MapWithJacobian(h, x, y, out double u, out double v, du, dv))
             {
                 continue;
             }
@@ -139,7 +140,7 @@ public static class LevenbergMarquardtFit
         }
     }
 
-    private static double CornerSigma(MotionModel model, double[] p, (double X, double Y, double U, double V)[] pts,
+    private static double CornerSigma(MotionFamily family, double[] p, (double X, double Y, double U, double V)[] pts,
         in HartleyNormalization n1, in HartleyNormalization n2, ReadOnlySpan<(double X, double Y)> corners)
     {
         int dof = p.Length;
@@ -150,22 +151,22 @@ public static class LevenbergMarquardtFit
         }
         var jtj = new double[dof * dof];
         var jtr = new double[dof];
-        Normal(model, p, pts, jtj, jtr);
-        double sigma2 = Cost(model, p, pts) / redundancy;
+        Normal(family, p, pts, jtj, jtr);
+        double sigma2 = Cost(family, p, pts) / redundancy;
         var info = Matrix<double>.Build.DenseOfRowMajor(dof, dof, jtj);
         if (!(info.ConditionNumber() < 1e14))
         {
             return double.NaN;
         }
         var cov = info.Inverse() * sigma2;
-        var h = ModelParameterization.FromParameters(model, p);
+        var h = family.FromParameters(p);
         Span<double> du = stackalloc double[8];
         Span<double> dv = stackalloc double[8];
         double worst = 0;
         foreach (var (cx, cy) in corners)
         {
             var (x, y) = n1.Apply(cx, cy);
-            if (!ModelParameterization.MapWithJacobian(model, h, x, y, out _, out _, du, dv))
+            if (!family.MapWithJacobian(h, x, y, out _, out _, du, dv))
             {
                 return double.PositiveInfinity;
             }

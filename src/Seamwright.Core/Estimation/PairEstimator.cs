@@ -150,7 +150,7 @@ public static class PairEstimator
         ArgumentNullException.ThrowIfNull(options);
         // Judged where the images overlap (the inliers' box), not over the whole first image.
         string? sanity = transform is { } h
-            ? TransformSanity.FindProblem(h, OverlapRegion.Corners(matches, TransferError.InlierIndices(h, matches, options.Threshold), sizeA), options.Sanity, "image's overlap")
+            ? MotionFamily.Of(options.Model).FindSanityProblem(h, OverlapRegion.Corners(matches, TransferError.InlierIndices(h, matches, options.Threshold), sizeA), options.Sanity, "image's overlap")
             : null;
         int overlap = transform is { } t ? OverlapCount(matches, t, sizeB) : 0;
         var evidence = new PairEvidence(options.Model, transform, matches.Length, overlap, consensus, runnerUpConsensus, cornerSigmaPx, options.Threshold, sanity);
@@ -174,7 +174,7 @@ public static class PairEstimator
     public static int RunnerUpConsensus(ReadOnlySpan<Correspondence> matches, Transform2D best, ReadOnlySpan<int> bestInliers, ImageSize sizeA, EstimationOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
-        int s = PairDecision.MinimalSize(options.Model);
+        int s = MotionFamily.Of(options.Model).MinimalSampleSize;
         var rest = new List<Correspondence>(matches.Length - bestInliers.Length);
         int k = 0;
         for (int i = 0; i < matches.Length; i++)
@@ -203,16 +203,10 @@ public static class PairEstimator
     }
 
     private static SamplingOutcome Dispatch(ReadOnlySpan<Correspondence> data, EstimationOptions o, SamplingSettings settings, ulong seed, SamplerKind kind) =>
-        o.Model switch
-        {
-            MotionModel.Translation => Run(new TranslationEstimator(), data, o, settings, seed, kind),
-            MotionModel.Similarity => Run(new SimilarityEstimator(), data, o, settings, seed, kind),
-            MotionModel.Affine => Run(new AffineEstimator(), data, o, settings, seed, kind),
-            MotionModel.Homography => Run(new HomographyEstimator(), data, o, settings, seed, kind),
-            _ => throw new ArgumentOutOfRangeException(nameof(o)),
-        };
+        MotionFamily.Of(o.Model).Sample(data, o, settings, seed, kind);
 
-    private static SamplingOutcome Run<TEstimator>(TEstimator estimator, ReadOnlySpan<Correspondence> data, EstimationOptions o, SamplingSettings settings, ulong seed, SamplerKind kind)
+    /// <summary>The sampling loop with one family's estimator (called by the family, see <see cref="MotionFamily.Sample"/>).</summary>
+    internal static SamplingOutcome Run<TEstimator>(TEstimator estimator, ReadOnlySpan<Correspondence> data, EstimationOptions o, SamplingSettings settings, ulong seed, SamplerKind kind)
         where TEstimator : struct, IEstimator
     {
         int s = estimator.MinimalSampleSize;

@@ -23,6 +23,7 @@ internal sealed class PolygonInequalities
     private readonly HartleyNormalization _first;
     private readonly HartleyNormalization _second;
     private readonly double _translationScale;
+    private readonly MotionFamily _family;
 
     public PolygonInequalities(ReadOnlySpan<Correspondence> matches, MotionModel model, double threshold, int sides, double tau)
     {
@@ -35,10 +36,11 @@ internal sealed class PolygonInequalities
             throw new ArgumentOutOfRangeException(nameof(threshold), threshold, "The threshold must be a positive number of pixels.");
         }
         Model = model;
+        _family = MotionFamily.Of(model);
         Count = matches.Length;
         Sides = sides;
         Tau = tau;
-        ParameterCount = ParametersOf(model);
+        ParameterCount = _family.ParameterCount;
         (_first, _second) = HartleyNormalization.ForMatches(matches);
         _translationScale = _second.Scale / _first.Scale;
         Radius = threshold * _second.Scale * Math.Cos(Math.PI / sides) * (1 - RadiusMargin);
@@ -54,28 +56,10 @@ internal sealed class PolygonInequalities
             var (xp, yp) = _second.Apply(matches[i].X2, matches[i].Y2);
             double u0 = 0, v0 = 0;
             uc.Clear(); vc.Clear(); wc.Clear();
-            switch (model)
+            _family.LinearRows(x, y, _translationScale, uc, vc, wc, ref u0, ref v0);
+            if (HasDepth)
             {
-                case MotionModel.Homography:
-                    uc[0] = x; uc[1] = y; uc[2] = 1;
-                    vc[3] = x; vc[4] = y; vc[5] = 1;
-                    wc[6] = x; wc[7] = y;
-                    wc.CopyTo(_depthCoefficients.AsSpan(i * p, p));
-                    break;
-                case MotionModel.Affine:
-                    uc[0] = x; uc[1] = y; uc[2] = 1;
-                    vc[3] = x; vc[4] = y; vc[5] = 1;
-                    break;
-                case MotionModel.Similarity:
-                    uc[0] = x; uc[1] = -y; uc[2] = 1;
-                    vc[0] = y; vc[1] = x; vc[3] = 1;
-                    break;
-                case MotionModel.Translation:
-                    uc[0] = 1; vc[1] = 1;
-                    u0 = _translationScale * x; v0 = _translationScale * y;
-                    break;
-                default:
-                    throw new ArgumentOutOfRangeException(nameof(model), model, "Unknown motion model.");
+                wc.CopyTo(_depthCoefficients.AsSpan(i * p, p));
             }
             for (int k = 0; k < sides; k++)
             {
@@ -108,16 +92,7 @@ internal sealed class PolygonInequalities
     public double Radius { get; }
 
     /// <summary>True for the homography, whose w depends on the parameters.</summary>
-    public bool HasDepth => Model == MotionModel.Homography;
-
-    public static int ParametersOf(MotionModel model) => model switch
-    {
-        MotionModel.Homography => 8,
-        MotionModel.Affine => 6,
-        MotionModel.Similarity => 4,
-        MotionModel.Translation => 2,
-        _ => throw new ArgumentOutOfRangeException(nameof(model), model, "Unknown motion model."),
-    };
+    public bool HasDepth => _family.HasDepth;
 
     /// <summary>Coefficients of row (datum i, side k) over the parameters; the row reads a . theta + b &lt;= slack.</summary>
     public ReadOnlySpan<double> RowCoefficients(int datum, int side) =>
@@ -169,24 +144,9 @@ internal sealed class PolygonInequalities
     /// <summary>The pixel transform (first image to second) of a parameter vector, scaled by a positive factor to |h33| = 1.</summary>
     public Transform2D ToPixel(ReadOnlySpan<double> theta)
     {
-        Transform2D normalised = Model switch
-        {
-            MotionModel.Homography => new(theta[0], theta[1], theta[2], theta[3], theta[4], theta[5], theta[6], theta[7], 1),
-            MotionModel.Affine => new(theta[0], theta[1], theta[2], theta[3], theta[4], theta[5], 0, 0, 1),
-            MotionModel.Similarity => new(theta[0], -theta[1], theta[2], theta[1], theta[0], theta[3], 0, 0, 1),
-            _ => new(_translationScale, 0, theta[0], 0, _translationScale, theta[1], 0, 0, 1),
-        };
+        var normalised = _family.FromLinearParameters(theta, _translationScale);
         var h = _second.InverseMatrix * normalised * _first.Matrix;
-        switch (Model)
-        {
-            case MotionModel.Homography:
-                double m33 = Math.Abs(h.M33);
-                return m33 > 1e-300 && double.IsFinite(m33) ? h.Scale(1 / m33) : h;
-            case MotionModel.Translation:
-                return Transform2D.Translation(h.M13, h.M23);
-            default:
-                return h with { M31 = 0, M32 = 0, M33 = 1 };
-        }
+        return _family.ProjectPixel(h);
     }
 
     /// <summary>
@@ -196,7 +156,7 @@ internal sealed class PolygonInequalities
     public bool TryToParameters(in Transform2D transform, Span<double> theta)
     {
         var h = _second.Matrix * transform * _first.InverseMatrix;
-        if (Model == MotionModel.Homography)
+        if (HasDepth)
         {
             if (!(h.M33 > 0))
             {
@@ -204,23 +164,7 @@ internal sealed class PolygonInequalities
             }
             h = h.Scale(1 / h.M33);
         }
-        switch (Model)
-        {
-            case MotionModel.Homography:
-                theta[6] = h.M31; theta[7] = h.M32;
-                goto case MotionModel.Affine;
-            case MotionModel.Affine:
-                theta[0] = h.M11; theta[1] = h.M12; theta[2] = h.M13;
-                theta[3] = h.M21; theta[4] = h.M22; theta[5] = h.M23;
-                break;
-            case MotionModel.Similarity:
-                theta[0] = (h.M11 + h.M22) / 2; theta[1] = (h.M21 - h.M12) / 2;
-                theta[2] = h.M13; theta[3] = h.M23;
-                break;
-            default:
-                theta[0] = h.M13; theta[1] = h.M23;
-                break;
-        }
+        _family.ToParameters(h, theta);
         foreach (double v in theta[..ParameterCount])
         {
             if (!double.IsFinite(v))

@@ -38,8 +38,9 @@ public static class PairDecision
         var rejected = new List<string>();
         var weak = new List<string>();
         var remarks = new List<string>();
-        int s = MinimalSize(e.Model);
-        string name = e.Model.ToString().ToLowerInvariant();
+        var family = MotionFamily.Of(e.Model);
+        int s = family.MinimalSampleSize;
+        string name = family.Name;
 
         if (e.Transform is null)
         {
@@ -83,16 +84,6 @@ public static class PairDecision
         var status = rejected.Count > 0 ? PairStatus.Rejected : weak.Count > 0 ? PairStatus.Weak : PairStatus.Accepted;
         return new PairVerdict(status, [.. rejected, .. weak, .. remarks]);
     }
-
-    /// <summary>Minimal sample size of a model family.</summary>
-    public static int MinimalSize(MotionModel model) => model switch
-    {
-        MotionModel.Translation => TranslationSolver.MinimalSampleSize,
-        MotionModel.Similarity => SimilaritySolver.MinimalSampleSize,
-        MotionModel.Affine => AffineSolver.MinimalSampleSize,
-        MotionModel.Homography => HomographySolver.MinimalSampleSize,
-        _ => throw new ArgumentOutOfRangeException(nameof(model)),
-    };
 
     private static string Inv(FormattableString s) => s.ToString(CultureInfo.InvariantCulture);
 }

@@ -41,7 +41,7 @@ internal static class EstimateCommand
             stderr.WriteLine("seamwright estimate: " + ex.Message);
             return ExitCodes.BadArguments;
         }
-        int minimal = PairDecision.MinimalSize(request.Options.Model);
+        int minimal = MotionFamily.Of(request.Options.Model).MinimalSampleSize;
         if (file.Matches.Length < minimal)
         {
             string model = EstimateOutput.ModelName(request.Options.Model);

@@ -13,7 +13,7 @@ namespace Seamwright.Host.Commands;
 /// </summary>
 internal static class EstimateOutput
 {
-    public static string ModelName(MotionModel model) => model.ToString().ToLowerInvariant();
+    public static string ModelName(MotionModel model) => MotionFamily.Of(model).Name;
 
     public static string StatusName(PairStatus status) => status.Word();
 

@@ -13,19 +13,11 @@ internal static class EstimationArguments
         switch (option)
         {
             case "--model":
-                MotionModel? model = value switch
+                if (!MotionFamily.TryParse(value, out var family))
                 {
-                    "homography" => MotionModel.Homography,
-                    "affine" => MotionModel.Affine,
-                    "similarity" => MotionModel.Similarity,
-                    "translation" => MotionModel.Translation,
-                    _ => null,
-                };
-                if (model is null)
-                {
-                    return $"--model expects homography, affine, similarity or translation (got '{value}')";
+                    return $"--model expects {MotionFamily.NamesInWords()} (got '{value}')";
                 }
-                options = options with { Model = model.Value };
+                options = options with { Model = family.Model };
                 return null;
             case "--threshold":
                 if (!double.TryParse(value, NumberStyles.Float, CultureInfo.InvariantCulture, out double px) || !double.IsFinite(px) || px <= 0)

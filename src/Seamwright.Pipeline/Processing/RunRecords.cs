@@ -71,7 +71,7 @@ public static class RunRecords
             InlierCount = e.InlierIndices.Length,
             MatchCount = e.MatchCount,
             Homography = e.Transform?.ToRows(),
-            MotionModel = e.Model.ToString().ToLowerInvariant(),
+            MotionModel = MotionFamily.Of(e.Model).Name,
             CornerSigmaPx = OutputNumbers.FiniteOrNull(e.CornerSigmaPx),
             RmsResidualPx = OutputNumbers.FiniteOrNull(e.RmsResidualPx),
             Consensus = new ConfidenceConsensus(e.Consensus.Sampling, e.Consensus.Refined, e.Consensus.Final, e.Consensus.RunnerUp, e.LpCount, e.Iterations),

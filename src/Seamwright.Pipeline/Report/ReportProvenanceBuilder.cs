@@ -1,4 +1,5 @@
 using System.Globalization;
+using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Sets;
 using Seamwright.Pipeline.Settings;
 
@@ -36,7 +37,7 @@ public static class ReportProvenanceBuilder
         string I(double v) => v.ToString("0.###", CultureInfo.InvariantCulture);
         return
         [
-            new("motion model", p.Estimation.MotionModel.ToString().ToLowerInvariant()),
+            new("motion model", MotionFamily.Of(p.Estimation.MotionModel).Name),
             new("threshold", I(p.Estimation.ThresholdPx) + " px"),
             new("seed", p.Estimation.Seed.ToString(CultureInfo.InvariantCulture)),
             new("consensus refinement", p.Estimation.RefineConsensus ? "on" : "off"),

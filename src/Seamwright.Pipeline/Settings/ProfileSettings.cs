@@ -81,7 +81,7 @@ public sealed class FeatureSettings
 /// <summary>Settings that shape a pairwise estimate and its decision.</summary>
 public sealed class EstimationSettings
 {
-    public MotionModel MotionModel { get; set; } = MotionModel.Homography;
+    public MotionModel MotionModel { get; set; } = MotionFamily.Homography.Model;
     /// <summary>Inlier threshold on the forward transfer error, in full-resolution pixels.</summary>
     public double ThresholdPx { get; set; } = 3.0;
     /// <summary>Base seed; each pair derives its own seed from it and a stable hash of the pair.</summary>

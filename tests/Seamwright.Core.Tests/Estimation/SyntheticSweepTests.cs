@@ -44,7 +44,7 @@ public class SyntheticSweepTests(ITestOutputHelper output)
         var options = EstimationOptions.Default with { Model = model };
         var truth = TruthFor(model);
         var corners = Transform2D.Corners(SizeA.Width, SizeA.Height);
-        int minimal = PairDecision.MinimalSize(model);
+        int minimal = MotionFamily.Of(model).MinimalSampleSize;
         var failures = new List<string>();
         int cells = 0, mustAccept = 0, mustRefuse = 0;
         ulong seed = 100;

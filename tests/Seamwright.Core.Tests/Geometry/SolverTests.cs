@@ -25,16 +25,10 @@ public class SolverTests
     public void Minimal_ExactSample_RecoversTruth(MotionModel model)
     {
         var truth = SyntheticSweepTests.TruthFor(model);
-        int s = Seamwright.Core.Quality.PairDecision.MinimalSize(model);
-        var sample = Exact(truth, s, 11);
+        var family = MotionFamily.Of(model);
+        var sample = Exact(truth, family.MinimalSampleSize, 11);
         Span<Transform2D> models = stackalloc Transform2D[4];
-        int count = model switch
-        {
-            MotionModel.Translation => new TranslationEstimator().SolveMinimal(sample, models),
-            MotionModel.Similarity => new SimilarityEstimator().SolveMinimal(sample, models),
-            MotionModel.Affine => new AffineEstimator().SolveMinimal(sample, models),
-            _ => new HomographyEstimator().SolveMinimal(sample, models),
-        };
+        int count = family.SolveMinimal(sample, models);
         Assert.Equal(1, count);
         AssertSame(truth, models[0], 1e-6);
     }
