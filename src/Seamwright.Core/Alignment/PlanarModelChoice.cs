@@ -26,8 +26,7 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
     public static PlanarModelChoice Choose(IReadOnlyList<AlignmentLink> links, MotionModel mostGeneral)
     {
         ArgumentNullException.ThrowIfNull(links);
-        var candidates = new[] { MotionModel.Translation, MotionModel.Similarity, MotionModel.Affine, MotionModel.Homography }
-            .Where(m => m <= mostGeneral).ToArray();
+        var candidates = MotionFamily.All.Where(f => f.IsSpecialCaseOf(MotionFamily.Of(mostGeneral))).Select(f => f.Model).ToArray();
         var scores = candidates.ToDictionary(m => m, _ => 0.0);
         int used = 0;
         foreach (var link in links)
@@ -41,7 +40,7 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
             var residuals = new Dictionary<MotionModel, double[]>();
             foreach (var m in candidates)
             {
-                residuals[m] = Fit(m, ties, link.AToB) is { } t ? [.. ties.Select(c => TransferError.ForwardSquared(t, c))] : [];
+                residuals[m] = Fit(m, ties) is { } t ? [.. ties.Select(c => TransferError.ForwardSquared(t, c))] : [];
             }
             var general = residuals[mostGeneral];
             if (general.Length == 0)
@@ -87,39 +86,12 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
     public static List<AlignmentLink> Refit(IReadOnlyList<AlignmentLink> links, MotionModel model)
     {
         ArgumentNullException.ThrowIfNull(links);
-        return [.. links.Select(l => l.TiePoints.Length >= 2 * ModelParameters.Count(model) && Fit(model, l.TiePoints, l.AToB) is { } t ? l with { AToB = t } : l)];
+        return [.. links.Select(l => l.TiePoints.Length >= 2 * ModelParameters.Count(model) && Fit(model, l.TiePoints) is { } t ? l with { AToB = t } : l)];
     }
 
-    private static Transform2D? Fit(MotionModel model, Correspondence[] ties, Transform2D initial)
-    {
-        bool ok = model switch
-        {
-            MotionModel.Translation => TranslationSolver.TryFit(ties, out var t) && Keep(t, out initial),
-            MotionModel.Similarity => SimilaritySolver.TryFit(ties, out var s) && Keep(s, out initial),
-            MotionModel.Affine => AffineSolver.TryFit(ties, out var a) && Keep(a, out initial),
-            _ => HomographySolver.TryLeastSquares(ties, out var h) && Keep(h, out initial),
-        };
-        if (!ok)
-        {
-            return null;
-        }
-        if (model == MotionModel.Homography)
-        {
-            // The linear fit minimises an algebraic error; recentre it on the transfer error.
-            var fit = LevenbergMarquardtFit.Fit(model, ties, initial, []);
-            if (fit.Transform.IsFinite)
-            {
-                initial = fit.Transform;
-            }
-        }
-        return initial;
-    }
+    /// <summary>The family's least-squares fit of the transfer error (<see cref="MotionFamily.FitTransferError"/>).</summary>
+    private static Transform2D? Fit(MotionModel model, Correspondence[] ties) =>
+        MotionFamily.Of(model).FitTransferError(ties);
 
-    private static bool Keep(Transform2D t, out Transform2D into)
-    {
-        into = t;
-        return t.IsFinite;
-    }
-
-    private static string Name(MotionModel m) => m.ToString().ToLowerInvariant();
+    private static string Name(MotionModel m) => MotionFamily.Of(m).Name;
 }

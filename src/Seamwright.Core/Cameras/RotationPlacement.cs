@@ -52,7 +52,7 @@ public static class RotationPlacement
             new ResidualFigures(r.TiePoints, r.InitialRmsPx, r.RmsPx, r.MedianPx, r.MaxPx, r.Iterations), r.Links);
         var demoted = rotation.LeftOut.Select(l => new DemotedLink(l.ImageA, l.ImageB, "rotation model", l.Reason)).ToArray();
         var offReasons = Enumerable.Range(0, n).Where(i => offPlane[i] is not null).Select(i => $"image {i}: {offPlane[i]}").ToArray();
-        var alignment = new SetAlignment(MotionModel.Homography, placements, rotation.Reference, [component], demoted, offReasons.Length > 0, offReasons);
+        var alignment = new SetAlignment(MotionFamily.Homography.Model, placements, rotation.Reference, [component], demoted, offReasons.Length > 0, offReasons);
         return (alignment, offPlane);
     }
 }
