@@ -18,6 +18,11 @@ internal sealed record JointSolution(Dictionary<int, Transform2D> ToReference, i
 /// </summary>
 internal sealed class JointRefiner
 {
+    /// <summary>Damping d (1 + lambda): lambda from 1e-4, divided by 3 on a gain, times 4 on a loss, times 10 when not positive definite; 12 tries.</summary>
+    private static readonly DampingSchedule Schedule = new(
+        InitialLambda: 1e-4, Decrease: 3, IncreaseOnReject: 4, IncreaseOnSingular: 10,
+        MaxAttempts: 12, MaxLambda: double.PositiveInfinity, RelativeGainTolerance: 1e-12);
+
     private readonly MotionModel _model;
     private readonly int _k;
     private readonly double _scale;
@@ -70,63 +75,9 @@ internal sealed class JointRefiner
         int iterations = 0;
         if (n > 0 && double.IsFinite(cost))
         {
-            var normal = new EnvelopeCholesky(FirstColumns());
-            var damped = new EnvelopeCholesky(FirstColumns());
-            var gradient = new double[n];
-            var step = new double[n];
-            var trial = new double[n];
-            double lambda = 1e-4;
-            for (int it = 0; it < maxIterations; it++)
-            {
-                Assemble(theta, normal, gradient);
-                bool accepted = false;
-                double trialCost = cost;
-                for (int attempt = 0; attempt < 12 && !accepted; attempt++)
-                {
-                    damped.CopyFrom(normal);
-                    for (int i = 0; i < n; i++)
-                    {
-                        double d = normal.Diagonal(i);
-                        damped.SetDiagonal(i, d * (1 + lambda) + 1e-12);
-                    }
-                    if (!damped.Factorize())
-                    {
-                        lambda *= 10;
-                        continue;
-                    }
-                    for (int i = 0; i < n; i++)
-                    {
-                        step[i] = -gradient[i];
-                    }
-                    damped.Solve(step);
-                    for (int i = 0; i < n; i++)
-                    {
-                        trial[i] = theta[i] + step[i];
-                    }
-                    trialCost = Cost(trial);
-                    if (trialCost < cost)
-                    {
-                        accepted = true;
-                        lambda = Math.Max(lambda / 3, 1e-12);
-                    }
-                    else
-                    {
-                        lambda *= 4;
-                    }
-                }
-                if (!accepted)
-                {
-                    break;
-                }
-                iterations++;
-                double gain = cost - trialCost;
-                Array.Copy(trial, theta, n);
-                cost = trialCost;
-                if (gain <= 1e-12 * Math.Max(cost, 1e-300))
-                {
-                    break;
-                }
-            }
+            var run = LevenbergMarquardt.Minimize(new SetProblem(this, theta), cost, maxIterations, Schedule);
+            iterations = run.Accepted;
+            cost = run.Cost;
         }
         var result = new Dictionary<int, Transform2D> { [_reference] = Transform2D.Identity };
         for (int p = 0; p < _vars.Length; p++)
@@ -134,6 +85,32 @@ internal sealed class JointRefiner
             result[_vars[p]] = FromNormalized(_vars[p], ModelParameters.ToTransform(_model, theta.AsSpan(p * _k, _k)));
         }
         return new JointSolution(result, iterations, initialCost, cost);
+    }
+
+    /// <summary>The component's parameters for the shared Levenberg-Marquardt core, normal equations in an envelope.</summary>
+    private sealed class SetProblem(JointRefiner refiner, double[] theta) : IDampedProblem
+    {
+        private readonly EnvelopeNormalEquations _equations = new(refiner.FirstColumns());
+        private readonly double[] _trial = new double[theta.Length];
+
+        public void Linearize() => refiner.Assemble(theta, _equations.Normal, _equations.Gradient);
+
+        public bool TrySolveStep(double lambda)
+        {
+            if (!_equations.TrySolveStep(lambda))
+            {
+                return false;
+            }
+            for (int i = 0; i < theta.Length; i++)
+            {
+                _trial[i] = theta[i] + _equations.Step[i];
+            }
+            return true;
+        }
+
+        public double TrialCost() => refiner.Cost(_trial);
+
+        public void AcceptTrial() => Array.Copy(_trial, theta, theta.Length);
     }
 
     private Transform2D ToNormalized(int image, Transform2D toReference)

@@ -1,4 +1,5 @@
 using Seamwright.Core.Alignment;
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Geometry;
 
 namespace Seamwright.Core.Cameras;
@@ -58,6 +59,11 @@ internal sealed class RotationBundle
         public State Copy() => new((Matrix3[])Rotations.Clone(), (double[])Focal.Clone(), (LensDistortion[])Lens.Clone());
     }
 
+    /// <summary>Damping as the joint refinement's (<c>Alignment/JointRefiner</c>), with a gain tolerance of 1e-13.</summary>
+    private static readonly DampingSchedule Schedule = new(
+        InitialLambda: 1e-4, Decrease: 3, IncreaseOnReject: 4, IncreaseOnSingular: 10,
+        MaxAttempts: 12, MaxLambda: double.PositiveInfinity, RelativeGainTolerance: 1e-13);
+
     private int CameraColumns => _focalCount + _lensCount * _terms;
 
     private int Size => 3 * _rotationCount + CameraColumns;
@@ -71,64 +77,35 @@ internal sealed class RotationBundle
         {
             return 0;
         }
-        var first = FirstColumns();
-        var normal = new EnvelopeCholesky(first);
-        var damped = new EnvelopeCholesky(first);
-        var gradient = new double[n];
-        var step = new double[n];
-        double lambda = 1e-4;
-        int iterations = 0;
-        for (int it = 0; it < maxIterations; it++)
+        return LevenbergMarquardt.Minimize(new BundleProblem(this, state), cost, maxIterations, Schedule).Accepted;
+    }
+
+    /// <summary>The state for the shared Levenberg-Marquardt core: a rotation increment per image on the manifold, normal equations in an envelope.</summary>
+    private sealed class BundleProblem(RotationBundle bundle, State state) : IDampedProblem
+    {
+        private readonly EnvelopeNormalEquations _equations = new(bundle.FirstColumns());
+        private State? _trial;
+
+        public void Linearize() => bundle.Assemble(state, _equations.Normal, _equations.Gradient);
+
+        public bool TrySolveStep(double lambda)
         {
-            Assemble(state, normal, gradient);
-            bool accepted = false;
-            State? trial = null;
-            double trialCost = cost;
-            for (int attempt = 0; attempt < 12 && !accepted; attempt++)
+            if (!_equations.TrySolveStep(lambda))
             {
-                damped.CopyFrom(normal);
-                for (int i = 0; i < n; i++)
-                {
-                    damped.SetDiagonal(i, normal.Diagonal(i) * (1 + lambda) + 1e-12);
-                }
-                if (!damped.Factorize())
-                {
-                    lambda *= 10;
-                    continue;
-                }
-                for (int i = 0; i < n; i++)
-                {
-                    step[i] = -gradient[i];
-                }
-                damped.Solve(step);
-                trial = Apply(state, step);
-                trialCost = trial is null ? double.PositiveInfinity : Cost(trial);
-                if (trialCost < cost)
-                {
-                    accepted = true;
-                    lambda = Math.Max(lambda / 3, 1e-12);
-                }
-                else
-                {
-                    lambda *= 4;
-                }
+                return false;
             }
-            if (!accepted)
-            {
-                break;
-            }
-            iterations++;
-            double gain = cost - trialCost;
-            Array.Copy(trial!.Rotations, state.Rotations, state.Rotations.Length);
-            Array.Copy(trial.Focal, state.Focal, state.Focal.Length);
-            Array.Copy(trial.Lens, state.Lens, state.Lens.Length);
-            cost = trialCost;
-            if (gain <= 1e-13 * Math.Max(cost, 1e-300))
-            {
-                break;
-            }
+            _trial = bundle.Apply(state, _equations.Step);
+            return true;
         }
-        return iterations;
+
+        public double TrialCost() => _trial is null ? double.PositiveInfinity : bundle.Cost(_trial);
+
+        public void AcceptTrial()
+        {
+            Array.Copy(_trial!.Rotations, state.Rotations, state.Rotations.Length);
+            Array.Copy(_trial.Focal, state.Focal, state.Focal.Length);
+            Array.Copy(_trial.Lens, state.Lens, state.Lens.Length);
+        }
     }
 
     /// <summary>Robust cost (Cauchy) of a state.</summary>

@@ -16,13 +16,18 @@ namespace Seamwright.Core.Estimation;
 public sealed record LeastSquaresFit(Transform2D Transform, double SumSquaredPx, int Iterations, double CornerSigmaPx);
 
 /// <summary>
-/// Levenberg-Marquardt (Marquardt, SIAM J. Appl. Math. 1963; damping of the diagonal) on the sum of
-/// squared forward transfer errors, for any motion model, computed on Hartley-normalised
+/// Levenberg-Marquardt (the shared <see cref="LevenbergMarquardt"/> core; Marquardt, SIAM J. Appl.
+/// Math. 1963, damping of the diagonal) on the sum of squared forward transfer errors, for any motion model, computed on Hartley-normalised
 /// coordinates of the data (an isotropic scale of the residuals: the minimiser is the same).
 /// </summary>
 public static class LevenbergMarquardtFit
 {
     private const int MaxIterations = 50;
+
+    /// <summary>Damping of the diagonal as in Marquardt 1963: lambda from 1e-3, divided and multiplied by 10, up to 1e12.</summary>
+    private static readonly DampingSchedule Schedule = new(
+        InitialLambda: 1e-3, Decrease: 10, IncreaseOnReject: 10, IncreaseOnSingular: 10,
+        MaxAttempts: int.MaxValue, MaxLambda: 1e12, RelativeGainTolerance: 1e-15);
 
     public static LeastSquaresFit Fit(MotionModel model, ReadOnlySpan<Correspondence> data, Transform2D initial, ReadOnlySpan<(double X, double Y)> corners)
     {
@@ -40,43 +45,12 @@ public static class LevenbergMarquardtFit
         var p = new double[dof];
         family.ToParameters(hn, p);
         double cost = Cost(family, p, pts);
-        var jtj = new double[dof * dof];
-        var jtr = new double[dof];
-        var trial = new double[dof];
-        double lambda = 1e-3;
         int iterations = 0;
         if (double.IsFinite(cost))
         {
-            for (; iterations < MaxIterations; iterations++)
-            {
-                Normal(family, p, pts, jtj, jtr);
-                bool improved = false;
-                while (lambda < 1e12)
-                {
-                    var a = Matrix<double>.Build.Dense(dof, dof, (i, j) => jtj[i * dof + j] + (i == j ? lambda * Math.Max(jtj[i * dof + i], 1e-12) : 0));
-                    var b = Vector<double>.Build.Dense(dof, i => -jtr[i]);
-                    var delta = a.Solve(b);
-                    for (int i = 0; i < dof; i++)
-                    {
-                        trial[i] = p[i] + delta[i];
-                    }
-                    double trialCost = Cost(family, trial, pts);
-                    if (trialCost < cost)
-                    {
-                        double decrease = cost - trialCost;
-                        Array.Copy(trial, p, dof);
-                        cost = trialCost;
-                        lambda = Math.Max(lambda / 10, 1e-12);
-                        improved = decrease > 1e-15 * Math.Max(cost, 1e-300);
-                        break;
-                    }
-                    lambda *= 10;
-                }
-                if (!improved)
-                {
-                    break;
-                }
-            }
+            var run = LevenbergMarquardt.Minimize(new PairProblem(family, pts, p), cost, MaxIterations, Schedule);
+            // An accepted step whose gain was too small to continue is not counted as an iteration.
+            iterations = run.Accepted - (run.StoppedOnSmallGain ? 1 : 0);
         }
         var fitted = family.FromParameters(p);
         var transform = (n2.InverseMatrix * fitted * n1.Matrix).Normalized();
@@ -87,6 +61,34 @@ public static class LevenbergMarquardtFit
         }
         double sigma = CornerSigma(family, p, pts, n1, n2, corners);
         return new LeastSquaresFit(transform, sse, iterations, sigma);
+    }
+
+    /// <summary>The pair's normal equations, dense (at most 8 parameters), damped by lambda max(J^T J_ii, 1e-12).</summary>
+    private sealed class PairProblem(MotionFamily family, (double X, double Y, double U, double V)[] pts, double[] p) : IDampedProblem
+    {
+        private readonly int _dof = p.Length;
+        private readonly double[] _jtj = new double[p.Length * p.Length];
+        private readonly double[] _jtr = new double[p.Length];
+        private readonly double[] _trial = new double[p.Length];
+
+        public void Linearize() => Normal(family, p, pts, _jtj, _jtr);
+
+        public bool TrySolveStep(double lambda)
+        {
+            int dof = _dof;
+            var a = Matrix<double>.Build.Dense(dof, dof, (i, j) => _jtj[i * dof + j] + (i == j ? lambda * Math.Max(_jtj[i * dof + i], 1e-12) : 0));
+            var b = Vector<double>.Build.Dense(dof, i => -_jtr[i]);
+            var delta = a.Solve(b);
+            for (int i = 0; i < dof; i++)
+            {
+                _trial[i] = p[i] + delta[i];
+            }
+            return true;
+        }
+
+        public double TrialCost() => Cost(family, _trial, pts);
+
+        public void AcceptTrial() => Array.Copy(_trial, p, _dof);
     }
 
     private static double Cost(MotionFamily family, ReadOnlySpan<double> p, (double X, double Y, double U, double V)[] pts)
