@@ -113,10 +113,7 @@ public sealed class DemoGoldenTests(ITestOutputHelper output)
         return Encoding.UTF8.GetBytes(node.ToJsonString());
     }
 
-    private static byte[] ReportWithoutVolatile(string html) =>
-        Encoding.UTF8.GetBytes(System.Text.RegularExpressions.Regex.Replace(html,
-            System.Text.RegularExpressions.Regex.Escape(Seamwright.Pipeline.Report.ReportVerdict.VolatileStart) + ".*?" + System.Text.RegularExpressions.Regex.Escape(Seamwright.Pipeline.Report.ReportVerdict.VolatileEnd),
-            "", System.Text.RegularExpressions.RegexOptions.Singleline | System.Text.RegularExpressions.RegexOptions.CultureInvariant, TimeSpan.FromSeconds(10)));
+    private static byte[] ReportWithoutVolatile(string html) => Encoding.UTF8.GetBytes(OutputNormalisation.WithoutVolatileSpans(html));
 
     private static string Render(SortedDictionary<string, string> hashes) =>
         JsonSerializer.Serialize(hashes, new JsonSerializerOptions { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping }) + "\n";

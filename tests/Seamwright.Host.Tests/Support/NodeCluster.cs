@@ -212,11 +212,7 @@ internal sealed class NodeCluster : IDisposable
             else if (f.EndsWith(".html", StringComparison.Ordinal))
             {
                 // run ids, and the verdict's input folder and written time (marked volatile by the report)
-                text = System.Text.Encoding.UTF8.GetString(bytes);
-                text = System.Text.RegularExpressions.Regex.Replace(text, "<!--volatile-->.*?<!--/volatile-->", "VOLATILE", System.Text.RegularExpressions.RegexOptions.Singleline);
-                text = System.Text.RegularExpressions.Regex.Replace(text, "<code>[0-9]+</code>", "<code>RUN</code>");
-                text = System.Text.RegularExpressions.Regex.Replace(text, "<dd>[0-9]+, written", "<dd>RUN, written");
-                text = System.Text.RegularExpressions.Regex.Replace(text, "run [0-9]+(?=<)", "run RUN");
+                text = OutputNormalisation.WithoutRunLabels(OutputNormalisation.WithoutVolatileSpans(System.Text.Encoding.UTF8.GetString(bytes), "VOLATILE"));
             }
             else
             {

@@ -1,10 +1,10 @@
-using System.Text.RegularExpressions;
 using Seamwright.Core.Geometry;
 using Seamwright.Core.Synthetic;
 using Seamwright.Pipeline.Analysis;
 using Seamwright.Pipeline.Output;
 using Seamwright.Pipeline.Processing;
 using Seamwright.Pipeline.Settings;
+using Seamwright.Tests.Shared;
 using Seamwright.Tests.Support;
 
 namespace Seamwright.Pipeline.Tests.Processing;
@@ -165,13 +165,7 @@ public sealed partial class PairReuseTests
             .ToDictionary(f => Path.GetRelativePath(folder, f).Replace('\\', '/'), File.ReadAllBytes, StringComparer.Ordinal);
 
     /// <summary>The run number and the time written are the only fields allowed to differ (JSON "run" and "time", the report's run label and its volatile spans).</summary>
-    private static string Normalise(string text) => VolatileText().Replace(RunNumber().Replace(text, "run#"), "volatile#");
-
-    [GeneratedRegex(@"""run"": ?\d+|run <code>\d+</code>|run \d+(?=<)|<dd>\d+, written")]
-    private static partial Regex RunNumber();
-
-    [GeneratedRegex(@"""time"": ?""[^""]*""|<!--volatile-->.*?<!--/volatile-->")]
-    private static partial Regex VolatileText();
+    private static string Normalise(string text) => OutputNormalisation.Comparable(text);
 
     private static void Process(RootSession session)
     {
