@@ -64,7 +64,7 @@ public static class SetModelSelector
             return new SetModelResult(forced, Name(estimationModel), "planar model set by the profile (the pairs' estimation model)", null, null, null, none);
         }
         var choice = PlanarModelChoice.Choose(usable, estimationModel);
-        var planar = SetAligner.Align(sizes, choice.Model < estimationModel ? PlanarModelChoice.Refit(links, choice.Model) : links, choice.Model, planarOptions);
+        var planar = SetAligner.Align(sizes, !MotionFamily.Of(estimationModel).IsSpecialCaseOf(MotionFamily.Of(choice.Model)) ? PlanarModelChoice.Refit(links, choice.Model) : links, choice.Model, planarOptions);
         string? evidence = kind == SetModelKind.Rotation ? "rotation model set by the profile" : RotationEvidence(usable, sizes);
         if (evidence is null)
         {
@@ -135,5 +135,5 @@ public static class SetModelSelector
         return null;
     }
 
-    private static string Name(MotionModel m) => m.ToString().ToLowerInvariant();
+    private static string Name(MotionModel m) => MotionFamily.Of(m).Name;
 }

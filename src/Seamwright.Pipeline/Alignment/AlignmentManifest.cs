@@ -1,4 +1,5 @@
 using Seamwright.Core.Alignment;
+using Seamwright.Core.Estimation;
 
 namespace Seamwright.Pipeline.Alignment;
 
@@ -54,7 +55,7 @@ public sealed record ManifestAlignment
             names[c.Reference], [.. c.Images.Select(i => names[i])], ToCanvas(c.Canvas), ToResiduals(c.Residuals))).ToArray();
         return new ManifestAlignment
         {
-            MotionModel = alignment.Model.ToString().ToLowerInvariant(),
+            MotionModel = MotionFamily.Of(alignment.Model).Name,
             Reference = alignment.Reference is int r ? names[r] : null,
             Canvas = components.Length > 0 ? components[0].Canvas : null,
             Residuals = components.Length > 0 ? components[0].Residuals : null,

@@ -76,7 +76,7 @@ public static class SetVisuals
         var reportPairs = pairs.Select(p => new ReportPair(
             images[p.A].Name, images[p.B].Name, p.Estimate.Status.Word(), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
             p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B))).ToList();
-        var report = new SetReport(setName, runId, fingerprint, alignment.Model.ToString().ToLowerInvariant(), reportImages, reportPairs, preview,
+        var report = new SetReport(setName, runId, fingerprint, MotionFamily.Of(alignment.Model).Name, reportImages, reportPairs, preview,
             [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names)],
             SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names))
         {
