@@ -42,7 +42,14 @@ public sealed class ProcessingContext
         typeof(ProcessingContext).Assembly.GetName().Version?.ToString(3) ?? "0.0.0";
 
     /// <summary>The algorithm version recorded in outputs and fingerprinted: pipeline and engine versions.</summary>
-    public int AlgorithmVersion => PipelineVersion * 1000 + Engine.AlgorithmVersion;
+    public int AlgorithmVersion => AlgorithmVersionOf(Engine);
+
+    /// <summary>The algorithm version of outputs made with this engine (the one formula; the run plan and the up-to-date check both use it).</summary>
+    public static int AlgorithmVersionOf(IPairEngine engine)
+    {
+        ArgumentNullException.ThrowIfNull(engine);
+        return PipelineVersion * 1000 + engine.AlgorithmVersion;
+    }
 
     /// <summary>The run plan of a set of this profile under the current settings: resolved once at the start of each run.</summary>
     public RunPlan PlanFor(string profile) => RunPlan.Resolve(Options, profile, Engine.Name, AlgorithmVersion);
@@ -54,7 +61,7 @@ public sealed class ProcessingContext
     {
         ArgumentNullException.ThrowIfNull(options);
         ArgumentNullException.ThrowIfNull(engine);
-        return SettingsFingerprint.ForSet(options.Profile(profile), options.Limits, engine.Name, PipelineVersion * 1000 + engine.AlgorithmVersion);
+        return SettingsFingerprint.ForSet(options.Profile(profile), options.Limits, engine.Name, AlgorithmVersionOf(engine));
     }
 
     /// <summary>True when the ledger says the set's last finished run used these inputs and settings and its manifest exists.</summary>
