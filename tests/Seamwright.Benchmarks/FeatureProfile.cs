@@ -71,7 +71,7 @@ internal static class FeatureProfile
         double c = ThreadCpuClock.NowMilliseconds();
         var full = loader.Load(file).Image;
         t["load"] = Lap(ref c);
-        var scaled = AreaResampler.ToPixelBudget(full, settings.WorkingPixelBudget);
+        var scaled = AreaResampler.ToPixelBudget(full, settings.AnalysisPixelBudget);
         t["budget"] = Lap(ref c);
         var options = settings.Detector;
         var image = scaled.Image;

@@ -26,7 +26,7 @@ internal static class WatchCommand
 
     public static int Execute(string[] args)
     {
-        if (ReadSettings(args, out var a, out var options) is int bad)
+        if (ReadSettings(args, out var a, out var options, out var warnings) is int bad)
         {
             return bad;
         }
@@ -34,6 +34,10 @@ internal static class WatchCommand
         if (TryCreateBuilder(a, options, reloadGuard, out var builder) is int unreadable)
         {
             return unreadable;
+        }
+        foreach (var w in warnings)
+        {
+            Log.Warning("Settings: {Warning}", w);
         }
 
         var sessions = new List<RootSession>();
@@ -126,10 +130,11 @@ internal static class WatchCommand
     }
 
     /// <summary>Parses the arguments and binds and validates the settings; an exit code when they are bad, else null.</summary>
-    private static int? ReadSettings(string[] args, out CommandArgs a, out SeamwrightOptions options)
+    private static int? ReadSettings(string[] args, out CommandArgs a, out SeamwrightOptions options, out IReadOnlyList<string> warnings)
     {
         a = null!;
         options = null!;
+        warnings = [];
         try
         {
             a = CommandArgs.Parse(args, ["--output", "--config"], []);
@@ -138,7 +143,7 @@ internal static class WatchCommand
                 return RunCommand.Bad("watch takes at most one ROOT: seamwright " + Usage);
             }
             var config = SettingsLoader.Build(a.Value("--config"), a.Overrides.ToArray());
-            options = SettingsLoader.Bind(config);
+            options = SettingsLoader.Bind(config, out warnings);
             ApplyCommandLineRoot(options, a);
             if (options.Roots.Count == 0)
             {
@@ -249,7 +254,7 @@ internal static class WatchCommand
         }
         try
         {
-            var fresh = SettingsLoader.Bind(config);
+            var fresh = SettingsLoader.Bind(config, out var warnings);
             ApplyCommandLineRoot(fresh, a);
             runtime.Options = fresh;
             foreach (var s in runtime.Roots)
@@ -258,6 +263,10 @@ internal static class WatchCommand
             }
             runtime.SettingsChanged = true;
             Log.Information("Settings reloaded from {File}: {Changes}", file, string.Join("; ", changes));
+            foreach (var w in warnings)
+            {
+                Log.Warning("Settings: {Warning}", w);
+            }
             return now;
         }
         catch (SettingsException e)

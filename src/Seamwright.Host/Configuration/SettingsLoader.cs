@@ -55,9 +55,24 @@ internal static class SettingsLoader
     public static IConfiguration Build(string? configFile, string[] overrides) =>
         new ConfigurationBuilder().AddSeamwrightSources(configFile, overrides, reloadOnChange: false).Build();
 
-    /// <summary>Binds and validates; throws <see cref="SettingsException"/> naming every bad setting.</summary>
+    /// <summary>
+    /// Binds and validates; throws <see cref="SettingsException"/> naming every bad setting. Warnings
+    /// (renamed keys still in use, <see cref="RenamedSettings"/>) go to standard error.
+    /// </summary>
     public static SeamwrightOptions Bind(IConfiguration config)
     {
+        var options = Bind(config, out var warnings);
+        foreach (var w in warnings)
+        {
+            System.Console.Error.WriteLine("seamwright: warning: " + w);
+        }
+        return options;
+    }
+
+    /// <summary>Binds and validates, returning the warnings for the caller to log.</summary>
+    public static SeamwrightOptions Bind(IConfiguration config, out IReadOnlyList<string> warnings)
+    {
+        ArgumentNullException.ThrowIfNull(config);
         var options = new SeamwrightOptions();
         try
         {
@@ -68,6 +83,7 @@ internal static class SettingsLoader
             string allowed = WrongTypeKey(e.Message) is { } key && SettingsValidator.AllowedFor(key) is { } range ? "; allowed: " + range : "";
             throw new SettingsException("A setting has a value of the wrong type: " + e.Message + (e.InnerException is null ? "" : " (" + e.InnerException.Message + ")") + allowed);
         }
+        warnings = RenamedSettings.Apply(config, options);
         var errors = SettingsValidator.Check(options);
         if (errors.Count > 0)
         {

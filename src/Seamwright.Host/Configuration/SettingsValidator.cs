@@ -74,7 +74,7 @@ internal static class SettingsValidator
         {
             e.Add($"{k}:Completion:ReadyMarker is '{p.Completion.ReadyMarker}'; allowed: a file name without folders, or empty");
         }
-        Range(e, $"{k}:Features:WorkingMegapixels", p.Features.WorkingMegapixels, 0.05, 100, "megapixels");
+        Range(e, $"{k}:Features:AnalysisMegapixels", p.Features.AnalysisMegapixels, 0.05, 100, "megapixels");
         Range(e, $"{k}:Features:MaxKeypoints", p.Features.MaxKeypoints, 16, 100000, "keypoints");
         for (int i = 0; i < p.Features.Masks.Count; i++)
         {
@@ -165,6 +165,7 @@ internal static class SettingsValidator
         {
             var o = new SeamwrightOptions();
             o.Roots.Add(new RootSettings { Path = "." });
+            o.Profiles.Add("default", new ProfileSettings()); // so that profile keys have their ranges too
             Check(o);
             return _ranges.GetValueOrDefault(Generic(key));
         }

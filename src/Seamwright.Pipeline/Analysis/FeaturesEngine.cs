@@ -139,7 +139,7 @@ public sealed class FeaturesEngine : IPairEngine
         ArgumentNullException.ThrowIfNull(s);
         return FeatureSettings.Default with
         {
-            WorkingPixelBudget = (long)(s.WorkingMegapixels * 1e6),
+            AnalysisPixelBudget = (long)(s.AnalysisMegapixels * 1e6),
             Detector = FeatureSettings.Default.Detector with { MaxFeatures = s.MaxKeypoints },
         };
     }

@@ -11,8 +11,8 @@ public sealed record FeatureSettings
 {
     public static FeatureSettings Default { get; } = new();
 
-    /// <summary>Pixels of the working copy corners are detected on (docs/DESIGN.md stage 1: about 2 megapixels).</summary>
-    public long WorkingPixelBudget { get; init; } = 2_000_000;
+    /// <summary>Pixels of the analysis image corners are detected on (docs/DESIGN.md stage 1: about 2 megapixels).</summary>
+    public long AnalysisPixelBudget { get; init; } = 2_000_000;
 
     /// <summary>Corner detector and pyramid.</summary>
     public CornerDetectorOptions Detector { get; init; } = new();
@@ -25,7 +25,7 @@ public sealed record FeatureSettings
 
     public void Validate()
     {
-        if (WorkingPixelBudget < 10_000 || TemplateRadius < 3 || MinSearchRadius < 1)
+        if (AnalysisPixelBudget < 10_000 || TemplateRadius < 3 || MinSearchRadius < 1)
         {
             throw new ArgumentException("Invalid feature settings: " + this);
         }
@@ -48,7 +48,7 @@ public sealed record FeatureSettings
         {
             var d = Detector;
             return string.Create(CultureInfo.InvariantCulture,
-                $"features-v1;pattern={DescriptorPattern.Version};budget={WorkingPixelBudget};max={d.MaxFeatures};levels={d.Levels};"
+                $"features-v1;pattern={DescriptorPattern.Version};budget={AnalysisPixelBudget};max={d.MaxFeatures};levels={d.Levels};"
                 + $"factor={d.ScaleFactor:R};block={d.BlockSize};noise={d.NoiseFactor:R};noisefloor={d.MinNoiseSigma:R};cell={d.CellSize};"
                 + $"template={TemplateRadius};search={MinSearchRadius}");
         }

@@ -4,7 +4,7 @@ using Seamwright.Core.Imaging;
 
 namespace Seamwright.Pipeline.Features;
 
-/// <summary>Features of one full-resolution gray image: detect on a working copy, keep full-resolution patches.</summary>
+/// <summary>Features of one full-resolution gray image: detect on an analysis image, keep full-resolution patches.</summary>
 public static class ImageFeatureExtractor
 {
     public static ImageFeatures Extract(GrayImage full, FeatureMask? mask, FeatureSettings settings)
@@ -12,7 +12,7 @@ public static class ImageFeatureExtractor
         ArgumentNullException.ThrowIfNull(full);
         ArgumentNullException.ThrowIfNull(settings);
         settings.Validate();
-        var scaled = AreaResampler.ToPixelBudget(full, settings.WorkingPixelBudget);
+        var scaled = AreaResampler.ToPixelBudget(full, settings.AnalysisPixelBudget);
         var working = scaled.Image;
         double scale = scaled.Scale;
         var workingMask = mask?.Rasterize(full.Width, full.Height, working.Width, working.Height);

@@ -44,7 +44,7 @@ public sealed class ImageFeatures
     /// <summary>Size of the image as displayed (after the EXIF orientation), full resolution.</summary>
     public ImageSize FullSize { get; }
 
-    /// <summary>Size of the working copy the corners were detected on.</summary>
+    /// <summary>Size of the analysis image the corners were detected on.</summary>
     public ImageSize WorkingSize { get; }
 
     /// <summary>

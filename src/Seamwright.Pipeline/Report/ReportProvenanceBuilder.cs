@@ -44,7 +44,7 @@ public static class ReportProvenanceBuilder
             new("ratio test", I(p.Estimation.RatioTest)),
             new("pairing", p.Pairing.Mode.ToString().ToLowerInvariant() + ", neighbour span " + p.Pairing.NeighbourSpan.ToString(CultureInfo.InvariantCulture)),
             new("corners per image", p.Features.MaxKeypoints.ToString(CultureInfo.InvariantCulture)),
-            new("analysis size", I(p.Features.WorkingMegapixels) + " MP"),
+            new("analysis size", I(p.Features.AnalysisMegapixels) + " MP"),
             new("weak links in the alignment", p.Alignment.IncludeWeakLinks ? "yes" : "no"),
         ];
     }

@@ -70,8 +70,12 @@ public sealed class MaskRect
 /// <summary>Settings that shape the per-image features (the feature-cache fingerprint covers exactly these).</summary>
 public sealed class FeatureSettings
 {
-    /// <summary>Working resolution in megapixels; larger images are downscaled for detection.</summary>
-    public double WorkingMegapixels { get; set; } = 2.0;
+    /// <summary>
+    /// Size of the analysis image in megapixels: larger images are shrunk to it for corner detection
+    /// (tie points are re-localised at full resolution). Key <c>Features:AnalysisMegapixels</c>; the
+    /// key it replaces is still read for one release (Host/Configuration/RenamedSettings.cs).
+    /// </summary>
+    public double AnalysisMegapixels { get; set; } = 2.0;
     /// <summary>Most keypoints kept per image.</summary>
     public int MaxKeypoints { get; set; } = 4000;
     /// <summary>Regions excluded from detection (rulers, colour targets, timestamps).</summary>

@@ -28,7 +28,7 @@ public static class SettingsFingerprint
             algorithm = algorithmVersion,
             engine,
             pairing = profile.Pairing,
-            features = profile.Features,
+            features = FeaturesShape(profile.Features),
             estimation = profile.Estimation,
             alignment = profile.Alignment,
             extensions = profile.EffectiveExtensions.Select(e => e.ToLowerInvariant()).Order(StringComparer.Ordinal).ToArray(),
@@ -45,7 +45,7 @@ public static class SettingsFingerprint
 
     /// <summary>Fingerprint of what shapes one image's features (the key of the feature cache with the image hash).</summary>
     public static string ForFeatures(FeatureSettings features, string engine, string descriptorVersion) =>
-        Digest(JsonSerializer.Serialize(new { engine, descriptorVersion, features }, Canonical));
+        Digest(JsonSerializer.Serialize(new { engine, descriptorVersion, features = FeaturesShape(features) }, Canonical));
 
     /// <summary>
     /// Fingerprint of what shapes one pair's outcome once both images' features exist (the key of
@@ -55,6 +55,19 @@ public static class SettingsFingerprint
     /// </summary>
     public static string ForPair(string featureFingerprint, EstimationSettings estimation, int algorithmVersion) =>
         Digest(JsonSerializer.Serialize(new { featureFingerprint, estimation, algorithm = algorithmVersion }, Canonical));
+
+    /// <summary>
+    /// The feature settings as fingerprinted. The analysis size keeps the key it had before its
+    /// setting was renamed, so a fingerprint recorded then (ledger, feature and pair caches) stays
+    /// valid for the same value. Every property of <see cref="FeatureSettings"/> must appear here
+    /// (SettingsFingerprintStabilityTests checks it).
+    /// </summary>
+    internal static object FeaturesShape(FeatureSettings f) => new
+    {
+        WorkingMegapixels = f.AnalysisMegapixels,
+        f.MaxKeypoints,
+        f.Masks,
+    };
 
     public static string Digest(string canonical)
     {

@@ -47,7 +47,7 @@ public class ImageFeaturesTests
         var a = new FeatureSettings();
         Assert.Equal(a.Fingerprint, new FeatureSettings().Fingerprint);
         Assert.Contains("sw-bin256-v1", a.Fingerprint, StringComparison.Ordinal);
-        Assert.NotEqual(a.Fingerprint, (a with { WorkingPixelBudget = 3_000_000 }).Fingerprint);
+        Assert.NotEqual(a.Fingerprint, (a with { AnalysisPixelBudget = 3_000_000 }).Fingerprint);
         Assert.NotEqual(a.Fingerprint, (a with { Detector = a.Detector with { MaxFeatures = 3000 } }).Fingerprint);
         Assert.NotEqual(a.Fingerprint, (a with { TemplateRadius = 9 }).Fingerprint);
     }
@@ -66,7 +66,7 @@ public class ImageFeaturesTests
     [Fact]
     public void Extract_LargeImage_KeypointsAndPatchesInFullResolution()
     {
-        // 3200 x 2400 = 7.7 MP, detected on a working copy of at most 2 MP.
+        // 3200 x 2400 = 7.7 MP, detected on an analysis image of at most 2 MP.
         var full = SceneRenderer.Render(new ProceduralScene(3, SceneStyle.EstateMap), 3200, 2400, Transform2D.Scaling(0.2, 0.2), 1);
         var f = ImageFeatureExtractor.Extract(full, null, FeatureSettings.Default);
         Assert.Equal(new ImageSize(3200, 2400), f.FullSize);

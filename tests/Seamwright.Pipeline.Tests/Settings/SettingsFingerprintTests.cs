@@ -26,6 +26,7 @@ public class SettingsFingerprintTests
             p => p.Pairing.NeighbourSpan = 3,
             p => p.Pairing.Mode = PairingMode.All,
             p => p.Features.MaxKeypoints = 500,
+            p => p.Features.AnalysisMegapixels = 3,
             p => p.Features.Masks.Add(new MaskRect { X = 0, Y = 0, Width = 0.1, Height = 0.1 }),
             p => p.Extensions.Add(".jpg"),
         };
@@ -45,7 +46,36 @@ public class SettingsFingerprintTests
         string before = SettingsFingerprint.ForFeatures(p.Features, "features", "d1");
         p.Estimation.ThresholdPx = 1;
         Assert.Equal(before, SettingsFingerprint.ForFeatures(p.Features, "features", "d1"));
-        p.Features.WorkingMegapixels = 1;
+        p.Features.AnalysisMegapixels = 1;
         Assert.NotEqual(before, SettingsFingerprint.ForFeatures(p.Features, "features", "d1"));
+    }
+}
+
+public class SettingsFingerprintStabilityTests
+{
+    /// <summary>
+    /// Digests of the default settings as written by releases before the analysis-size setting was
+    /// renamed: the rename must keep every recorded fingerprint (ledgers, feature and pair caches).
+    /// </summary>
+    [Fact]
+    public void Fingerprints_DefaultAndChangedAnalysisSize_SameAsBeforeTheRename()
+    {
+        var p = new ProfileSettings();
+        string a = SettingsFingerprint.ForSet(p, new LimitSettings(), "features", 1);
+        string b = SettingsFingerprint.ForFeatures(p.Features, "features", "d1");
+        p.Features.AnalysisMegapixels = 1.5;
+        p.Features.Masks.Add(new MaskRect { X = 0.1, Y = 0.2, Width = 0.3, Height = 0.4 });
+        string c = SettingsFingerprint.ForSet(p, new LimitSettings(), "features", 1);
+        string d = SettingsFingerprint.ForFeatures(p.Features, "features", "d1");
+        Assert.Equal(["848fe476a6b53e3e", "8c1cd794d69d1bf8", "8b67ab88ee6305a0", "1059b7bb61bf37a7"], new[] { a, b, c, d });
+    }
+
+    [Fact]
+    public void FeaturesShape_HoldsEveryFeatureSetting()
+    {
+        var shaped = SettingsFingerprint.FeaturesShape(new FeatureSettings()).GetType().GetProperties().Select(p => p.Name).ToList();
+        var settings = typeof(FeatureSettings).GetProperties().Select(p => p.Name).ToList();
+        Assert.Equal(settings.Count, shaped.Count);
+        Assert.Equal(settings.Where(n => n != nameof(FeatureSettings.AnalysisMegapixels)).Order(), shaped.Where(n => n != "WorkingMegapixels").Order());
     }
 }
