@@ -31,13 +31,9 @@ internal static class WatchCommand
             return bad;
         }
         var reloadGuard = new SettingsReloadGuard();
-        if (TryCreateBuilder(a, options, reloadGuard, out var builder) is int unreadable)
+        if (TryCreateBuilder(a, options, warnings, reloadGuard, out var builder) is int unreadable)
         {
             return unreadable;
-        }
-        foreach (var w in warnings)
-        {
-            Log.Warning("Settings: {Warning}", w);
         }
 
         var sessions = new List<RootSession>();
@@ -162,7 +158,7 @@ internal static class WatchCommand
     }
 
     /// <summary>The builder with the reload guard armed, or exit 2 when a settings file cannot be parsed (file and line named).</summary>
-    private static int? TryCreateBuilder(CommandArgs a, SeamwrightOptions options, SettingsReloadGuard reloadGuard, out HostApplicationBuilder builder)
+    private static int? TryCreateBuilder(CommandArgs a, SeamwrightOptions options, IReadOnlyList<string> warnings, SettingsReloadGuard reloadGuard, out HostApplicationBuilder builder)
     {
         builder = null!;
         try
@@ -172,6 +168,10 @@ internal static class WatchCommand
         catch (SettingsException e)
         {
             return RunCommand.Bad(e.Message);
+        }
+        foreach (var w in warnings)
+        {
+            Log.Warning("Settings: {Warning}", w); // logged once the logger is configured
         }
         reloadGuard.Armed = true;
         return null;
