@@ -20,24 +20,15 @@ public static class DominantOrientations
         double ws = 1.5 * sigma;
         int radius = (int)Math.Round(3 * ws);
         double expScale = -1.0 / (2 * ws * ws);
-        var data = image.Data;
-        int w = image.Width;
         for (int i = -radius; i <= radius; i++)
         {
-            int r = cy + i;
-            if (r <= 0 || r >= image.Height - 1)
-            {
-                continue;
-            }
             for (int j = -radius; j <= radius; j++)
             {
-                int c = cx + j;
-                if (c <= 0 || c >= w - 1)
+                if (!image.IsInterior(cx + j, cy + i))
                 {
                     continue;
                 }
-                int k = r * w + c;
-                double dx = data[k + 1] - data[k - 1], dy = data[k + w] - data[k - w];
+                var (dx, dy) = image.CentralGradient(cx + j, cy + i);
                 double weight = Math.Exp((i * i + j * j) * expScale);
                 double angle = Math.Atan2(dy, dx);
                 int bin = (int)Math.Round(Bins * angle / (2 * Math.PI));

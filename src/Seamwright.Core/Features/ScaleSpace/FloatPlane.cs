@@ -1,4 +1,5 @@
 using System.Numerics;
+using Seamwright.Core.Imaging;
 
 namespace Seamwright.Core.Features.ScaleSpace;
 
@@ -68,7 +69,7 @@ public sealed class FloatPlane
     /// <summary>This plane blurred by a Gaussian of deviation <paramref name="sigma"/> pixels (separable, edges clamped).</summary>
     public FloatPlane Blurred(double sigma)
     {
-        var kernel = Kernel(sigma);
+        var kernel = GaussianBlur.Kernel(sigma);
         var tmp = new FloatPlane(Width, Height);
         int r = kernel.Length / 2;
         var padded = new float[Width + 2 * r];
@@ -117,24 +118,14 @@ public sealed class FloatPlane
         return d;
     }
 
-    /// <summary>Normalised Gaussian taps, radius ceil(3 sigma) (at least 1).</summary>
-    public static float[] Kernel(double sigma)
+    /// <summary>True when (x, y) has a neighbour on every side (central differences are defined).</summary>
+    public bool IsInterior(int x, int y) => x > 0 && y > 0 && x < Width - 1 && y < Height - 1;
+
+    /// <summary>Central-difference gradient at an interior pixel (x right, y down).</summary>
+    public (double Dx, double Dy) CentralGradient(int x, int y)
     {
-        ArgumentOutOfRangeException.ThrowIfNegativeOrZero(sigma);
-        int r = Math.Max(1, (int)Math.Ceiling(3 * sigma));
-        var k = new float[2 * r + 1];
-        double sum = 0;
-        for (int i = -r; i <= r; i++)
-        {
-            double v = Math.Exp(-0.5 * i * i / (sigma * sigma));
-            k[i + r] = (float)v;
-            sum += v;
-        }
-        for (int i = 0; i < k.Length; i++)
-        {
-            k[i] = (float)(k[i] / sum);
-        }
-        return k;
+        int k = y * Width + x;
+        return (Data[k + 1] - Data[k - 1], Data[k + Width] - Data[k - Width]);
     }
 
     private static void AddScaled(Span<float> dst, ReadOnlySpan<float> src, float w)

@@ -29,31 +29,18 @@ public static class GradientHistogramDescriptor
         double expScale = -1.0 / (d * d * 0.5);
         double binsPerRad = n / (2 * Math.PI);
         int cx = (int)MathF.Round(x), cy = (int)MathF.Round(y);
-        var data = image.Data;
-        int w = image.Width;
         for (int i = -radius; i <= radius; i++)
         {
-            int r = cy + i;
-            if (r <= 0 || r >= image.Height - 1)
-            {
-                continue;
-            }
             for (int j = -radius; j <= radius; j++)
             {
-                int c = cx + j;
-                if (c <= 0 || c >= w - 1)
-                {
-                    continue;
-                }
                 // The sample's offset turned by -angle, in cell widths.
                 double cRot = j * cos + i * sin, rRot = -j * sin + i * cos;
                 double rBin = rRot + d / 2.0 - 0.5, cBin = cRot + d / 2.0 - 0.5;
-                if (rBin <= -1 || rBin >= d || cBin <= -1 || cBin >= d)
+                if (rBin <= -1 || rBin >= d || cBin <= -1 || cBin >= d || !image.IsInterior(cx + j, cy + i))
                 {
                     continue;
                 }
-                int k = r * w + c;
-                double dx = data[k + 1] - data[k - 1], dy = data[k + w] - data[k - w];
+                var (dx, dy) = image.CentralGradient(cx + j, cy + i);
                 double magnitude = Math.Sqrt(dx * dx + dy * dy) * Math.Exp((cRot * cRot + rRot * rRot) * expScale);
                 double oBin = (Math.Atan2(dy, dx) - angle) * binsPerRad;
                 Accumulate(hist, rBin, cBin, oBin, magnitude);

@@ -18,8 +18,6 @@ public sealed class ScaleSpaceFeatureSet
         Descriptors = descriptors;
     }
 
-    public static ScaleSpaceFeatureSet Empty { get; } = new([], []);
-
     public ScaleSpaceKeypoint[] Keypoints { get; }
 
     public byte[] Descriptors { get; }
