@@ -77,14 +77,18 @@ internal static class OneShot
                 log.Information("Nothing to do: {Sets} sets unchanged", sets.Count);
             }
             var outcomes = new System.Collections.Concurrent.ConcurrentDictionary<string, SetOutcome>(StringComparer.Ordinal);
+            using var handoff = new Operations.SetDoneHandoff(log, System.Console.Error.WriteLine);
             progress.Run(() =>
             {
                 var processor = new SetProcessor(session.Context);
                 Parallel.ForEach(todo, new ParallelOptions { MaxDegreeOfParallelism = options.Service.MaxParallelSets }, item =>
                 {
-                    outcomes[item.Set.SetId] = processor.Process(item.Set, incomplete: false, CancellationToken.None);
+                    var outcome = processor.Process(item.Set, incomplete: false, CancellationToken.None);
+                    outcomes[item.Set.SetId] = outcome;
+                    handoff.After(outcome, root, output);
                 });
             });
+            handoff.WaitAll(Timeout.InfiniteTimeSpan); // each is bounded by its own timeout
             int code = Summarize(session, sets, outcomes, started.Elapsed, output, req.Strict);
             log.Information("Run finished in {Seconds:0.0} s with exit code {Code}", started.Elapsed.TotalSeconds, code);
             return code;

@@ -37,6 +37,7 @@ internal static class WatchCommand
         }
 
         var sessions = new List<RootSession>();
+        using var handoff = new SetDoneHandoff(Log.Logger);
         bool started = false;
         ServiceOperations ops;
         try
@@ -52,15 +53,11 @@ internal static class WatchCommand
         {
             using var loggerFactory = new Serilog.Extensions.Logging.SerilogLoggerFactory(Log.Logger);
             OpenSessions(options, ops, loggerFactory, sessions);
-            var runtime = new ServiceRuntime(sessions, options) { Ops = ops };
+            var runtime = new ServiceRuntime(sessions, options) { Ops = ops, Handoff = handoff };
             builder.Services.AddSingleton(runtime);
             ops.AddTo(builder.Services, sessions.Select(s => Path.GetFullPath(s.Catalog.RootPath)).ToList(),
                 sessions.Select(s => s.Context).ToList(), LogFolderOf(builder.Configuration));
-            if (ops.Pool is not null)
-            {
-                Log.Information("Decoding in {Workers} supervised worker processes: {Timeout} s and {Memory} MiB per job, quarantine after {Strikes} strikes",
-                    ops.Supervision.Workers, ops.Supervision.JobTimeoutSeconds, ops.Supervision.MemoryCapMegabytes, ops.Supervision.StrikesBeforeQuarantine);
-            }
+            LogSupervision(ops);
             builder.Services.AddHostedService<WatcherService>();
             builder.Services.AddHostedService<SchedulerService>();
             builder.Services.AddHostedService<WorkerService>();
@@ -97,13 +94,23 @@ internal static class WatchCommand
         }
         finally
         {
-            // Workers first (their jobs were cancelled with the host), then the ledgers and roots.
+            // Hand-offs get the shutdown time, then the workers (cancelled with the host), then ledgers and roots.
+            handoff.WaitAll(TimeSpan.FromSeconds(options.Service.ShutdownSeconds));
             ops.DisposeAsync().AsTask().GetAwaiter().GetResult();
             foreach (var s in sessions)
             {
                 s.Dispose();
             }
             Log.CloseAndFlush();
+        }
+    }
+
+    private static void LogSupervision(ServiceOperations ops)
+    {
+        if (ops.Pool is not null)
+        {
+            Log.Information("Decoding in {Workers} supervised worker processes: {Timeout} s and {Memory} MiB per job, quarantine after {Strikes} strikes",
+                ops.Supervision.Workers, ops.Supervision.JobTimeoutSeconds, ops.Supervision.MemoryCapMegabytes, ops.Supervision.StrikesBeforeQuarantine);
         }
     }
 

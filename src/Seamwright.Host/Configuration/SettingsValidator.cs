@@ -125,6 +125,11 @@ internal static class SettingsValidator
         {
             Regex(e, $"{k}:SetPattern", r.SetPattern, r.SetKeyGroups.ToArray());
         }
+        if (r.OnSetDone.Length > 0 && Operations.HandoffProgram.Find(r.OnSetDone) is null)
+        {
+            e.Add($"{k}:OnSetDone is '{r.OnSetDone}', which is not an existing file; allowed: empty, or a program (a full path, or a name found on PATH; its arguments go in {k}:OnSetDoneArguments)");
+        }
+        Range(e, $"{k}:OnSetDoneTimeoutSeconds", r.OnSetDoneTimeoutSeconds, 1, 86400, "seconds");
     }
 
     private static void CheckState(List<string> e, string k, StateSettings s, ServiceSettings service)

@@ -54,6 +54,9 @@ internal sealed class ServiceRuntime
 
     public Exception? Fatal { get; private set; }
 
+    /// <summary>The downstream hand-off started after each published set (null in tests that run the loops bare).</summary>
+    public Operations.SetDoneHandoff? Handoff { get; init; }
+
     /// <summary>Supervised decoding and the health loop (null in tests that run the loops bare).</summary>
     public ServiceOperations? Ops { get; set; }
 

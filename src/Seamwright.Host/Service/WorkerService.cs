@@ -46,8 +46,17 @@ internal sealed partial class WorkerService(ServiceRuntime runtime, IHostApplica
             {
                 return; // the run was recorded as abandoned; the set is redone after restart
             }
+            runtime.Handoff?.After(outcome, RootSettingsOf(job.Root), ctx.OutputRoot);
             await runtime.Results.Writer.WriteAsync(new SetJobResult(job.Root, outcome), stop).ConfigureAwait(false);
         }
+    }
+
+    /// <summary>The root's settings now in force (a reload may have changed its hand-off), else those it was opened with.</summary>
+    private Pipeline.Settings.RootSettings RootSettingsOf(int root)
+    {
+        var opened = runtime.Roots[root].Root;
+        var current = runtime.Options.Roots.ElementAtOrDefault(root);
+        return current is not null && Path.GetFullPath(current.Path) == Path.GetFullPath(opened.Path) ? current : opened;
     }
 
     [LoggerMessage(Level = LogLevel.Critical, Message = "The worker loop failed")]

@@ -24,6 +24,15 @@ public sealed class RootSettings
     /// <summary>Named groups of <see cref="SetPattern"/> whose values form the set id.</summary>
     public List<string> SetKeyGroups { get; set; } = [];
     public List<ProfileRule> ProfileRules { get; set; } = [];
+    /// <summary>
+    /// Downstream hand-off: a program started after each set's manifest is written, with the manifest's
+    /// full path as its last argument ("" = none). Never through a shell.
+    /// </summary>
+    public string OnSetDone { get; set; } = "";
+    /// <summary>Arguments given to <see cref="OnSetDone"/> before the manifest path, each as one argument.</summary>
+    public List<string> OnSetDoneArguments { get; set; } = [];
+    /// <summary>Seconds <see cref="OnSetDone"/> may run before it is killed (with its child processes).</summary>
+    public double OnSetDoneTimeoutSeconds { get; set; } = 60;
 
     /// <summary>The output root used when none is configured (documented in README).</summary>
     public static string DefaultOutputFor(string root)
@@ -106,6 +115,9 @@ public sealed class SeamwrightOptions
             SetPattern = basis.SetPattern,
             SetKeyGroups = basis.SetKeyGroups,
             ProfileRules = basis.ProfileRules,
+            OnSetDone = basis.OnSetDone,
+            OnSetDoneArguments = basis.OnSetDoneArguments,
+            OnSetDoneTimeoutSeconds = basis.OnSetDoneTimeoutSeconds,
         };
     }
 
