@@ -126,8 +126,8 @@ public static class FeatureCacheCodec
         }
     }
 
-    /// <summary>FNV-1a, 64-bit (Fowler, Noll, Vo).</summary>
-    private static ulong Fnv1a(ReadOnlySpan<byte> data)
+    /// <summary>FNV-1a, 64-bit (Fowler, Noll, Vo); also the checksum of <c>Processing/ImageSummaryCodec</c>.</summary>
+    internal static ulong Fnv1a(ReadOnlySpan<byte> data)
     {
         ulong h = 14695981039346656037UL;
         foreach (byte b in data)

@@ -19,8 +19,8 @@ public sealed class AnalysedImage
 }
 
 /// <summary>
-/// Stage 1, images: hash every input (read-only), take its analysis from the feature cache or
-/// analyse it, record a bad file with its reason; then check no input changed meanwhile.
+/// Stage 1, images: hash every input (read-only), take its summary from the feature cache (size,
+/// coarse signature, capture time; the features stay on disk until a pair needs them) or analyse it, record a bad file with its reason; then check no input changed meanwhile.
 /// </summary>
 public sealed class ImageStage(ProcessingContext ctx)
 {
@@ -51,9 +51,9 @@ public sealed class ImageStage(ProcessingContext ctx)
         r.Hash = TryHash(r);
         if (r.BadReason is null)
         {
-            if (ctx.Cache.TryGet(r.Hash!, featureFp, out var cached))
+            if (ctx.Cache.TryGetSummary(r.Hash!, featureFp, out var cached))
             {
-                r.Analysis = cached.WithoutPayload();
+                r.Analysis = cached;
             }
             else
             {

@@ -41,7 +41,7 @@ public static class PairRedoPreview
             {
                 continue; // unreadable: the run records it as a bad file
             }
-            if (ctx.Cache.TryGet(hash, featureFp, out var analysis))
+            if (ctx.Cache.TryGetSummary(hash, featureFp, out var analysis))
             {
                 plan.Add(new PlanImage(f.Key, analysis.CaptureTime, analysis.Coarse));
             }

@@ -38,6 +38,34 @@ public sealed partial class PairReuseTests
     }
 
     [Fact]
+    public void Rerun_ImageReplaced_ReadsFeaturesOnlyOfTheImagesItsPairsNeed()
+    {
+        using var dir = new ScratchFolder();
+        WriteGrid(dir.Sub("in/g"), 3, 3);
+        // One worker: two workers missing the same image at once may both read it (FeatureLru), which would blur the count.
+        var (session, engine) = Open(dir.Sub("in"), dir.Sub("out"), workers: 1);
+        using (session)
+        {
+            Process(session);
+            WriteTile(dir.Sub("in/g"), 1, 1, noiseSeed: 777);
+            engine.Decodes = 0;
+            Process(session);
+            Assert.Equal(4, engine.Estimates - 12);
+            // The new middle tile and its four neighbours, once each; the four corners are not read at all.
+            Assert.Equal(5, engine.Decodes);
+            string corner = ImageStage.HashFile(dir.Sub("in/g/" + Name(0, 0))) + ".sum";
+            string summary = Directory.GetFiles(dir.Sub("out/.seamwright/features"), corner, SearchOption.AllDirectories).Single();
+            File.Delete(summary);
+            WriteTile(dir.Sub("in/g"), 1, 1, noiseSeed: 778);
+            engine.Decodes = 0;
+            Process(session);
+            Assert.Equal(6, engine.Decodes); // the corner's summary gone: its entry is decoded once and the summary written again
+            Assert.True(File.Exists(summary));
+        }
+        AssertEqualsCleanRun(dir, "g");
+    }
+
+    [Fact]
     public void Rerun_ImageAddedThenRemoved_OnlyNewPairsEstimatedAndOutputsEqualCleanRun()
     {
         using var dir = new ScratchFolder();
@@ -213,8 +241,12 @@ public sealed partial class PairReuseTests
     private sealed class CountingEngine(IPairEngine inner) : IPairEngine
     {
         private int _estimates;
+        private int _decodes;
 
         public int Estimates { get => Volatile.Read(ref _estimates); set => Volatile.Write(ref _estimates, value); }
+
+        /// <summary>Feature-cache entries decoded (read back in full).</summary>
+        public int Decodes { get => Volatile.Read(ref _decodes); set => Volatile.Write(ref _decodes, value); }
 
         public string Name => inner.Name;
 
@@ -227,7 +259,11 @@ public sealed partial class PairReuseTests
 
         public byte[] Encode(ImageAnalysis analysis) => inner.Encode(analysis);
 
-        public ImageAnalysis Decode(ReadOnlySpan<byte> data) => inner.Decode(data);
+        public ImageAnalysis Decode(ReadOnlySpan<byte> data)
+        {
+            Interlocked.Increment(ref _decodes);
+            return inner.Decode(data);
+        }
 
         public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed)
         {
