@@ -5,8 +5,17 @@ using Seamwright.Pipeline.Output;
 
 namespace Seamwright.Pipeline.Processing;
 
-/// <summary>One output file of a set, ready to be written: path relative to the set folder ('/' separators), manifest kind, bytes.</summary>
-public sealed record OutputFile(string Relative, string Kind, byte[] Bytes);
+/// <summary>
+/// One output file of a set, ready to be written: path relative to the set folder ('/' separators),
+/// manifest kind, and how to encode its bytes. Encoded only when written (<see cref="Bytes"/>
+/// encodes again on every call), so a set never holds all of its encoded documents at once.
+/// </summary>
+public sealed record OutputFile(string Relative, string Kind, Func<byte[]> Encode)
+{
+    public OutputFile(string relative, string kind, byte[] bytes) : this(relative, kind, () => bytes) { }
+
+    public byte[] Bytes => Encode();
+}
 
 /// <summary>What every output names about the program that made it.</summary>
 public sealed record OutputStamp(string Engine, string DescriptorVersion, int AlgorithmVersion, string ToolVersion)
@@ -19,8 +28,9 @@ public sealed record OutputStamp(string Engine, string DescriptorVersion, int Al
 }
 
 /// <summary>
-/// The set's documents other than the manifest, in memory (pure: no file system): a tie-point
-/// file per pair with a transform, a sidecar per good image, the preview and the report. To add
+/// The set's documents other than the manifest (pure: no file system): a tie-point file per pair
+/// with a transform, a sidecar per good image, the preview and the report, each encoded when the
+/// publisher writes it. To add
 /// a sidecar field, change <see cref="Sidecar"/> and <c>docs/schemas/</c>.
 /// </summary>
 public static class SetDocuments
@@ -42,14 +52,15 @@ public static class SetDocuments
         }
         for (int i = 0; i < pairs.Images.Count; i++)
         {
-            var sidecar = Sidecar(run, stamp, pairs, aligned, i, tiesOf);
-            files.Add(new OutputFile(OutputLayout.SidecarRelative(pairs.Images[i].Key), "sidecar", OutputJson.Sidecar(sidecar)));
+            int image = i;
+            files.Add(new OutputFile(OutputLayout.SidecarRelative(pairs.Images[i].Key), "sidecar",
+                () => OutputJson.Sidecar(Sidecar(run, stamp, pairs, aligned, image, tiesOf))));
         }
         if (aligned.Visuals.PreviewJpeg is { } preview)
         {
             files.Add(new OutputFile(SetVisuals.PreviewFileName, "preview", preview));
         }
-        files.Add(new OutputFile(SetVisuals.ReportFileName, "report", Encoding.UTF8.GetBytes(aligned.Visuals.ReportHtml)));
+        files.Add(new OutputFile(SetVisuals.ReportFileName, "report", () => Encoding.UTF8.GetBytes(aligned.Visuals.ReportHtml)));
         return files;
     }
 
@@ -64,7 +75,7 @@ public static class SetDocuments
         {
             return null;
         }
-        var doc = new TiePointsDocument
+        return new OutputFile(OutputLayout.TiesRelative(pairs.KeyA(pair), pairs.KeyB(pair)), "tiepoints", () => OutputJson.TiePoints(new TiePointsDocument
         {
             Run = run.RunId,
             Set = run.SetId,
@@ -74,8 +85,7 @@ public static class SetDocuments
             Transform = est.Transform.Value.ToRows(),
             Count = pair.Analysis.TiePoints.Count,
             Points = pair.Analysis.TiePoints.Select(t => new[] { t.X1, t.Y1, t.X2, t.Y2 }).ToArray(),
-        };
-        return new OutputFile(OutputLayout.TiesRelative(doc.ImageA, doc.ImageB), "tiepoints", OutputJson.TiePoints(doc));
+        }));
     }
 
     /// <summary>The sidecar of good image <paramref name="i"/>: its placement and every planned pair it is part of.</summary>

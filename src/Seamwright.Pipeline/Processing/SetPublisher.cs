@@ -49,10 +49,12 @@ public sealed class SetPublisher(ProcessingContext ctx)
         return entries;
     }
 
+    /// <summary>Encodes one document, writes it and keeps only its hash: at most the writers' documents are in memory at once.</summary>
     private static ManifestEntry Write(string setFolder, OutputFile file)
     {
-        AtomicFile.WriteAllBytes(OutputLayout.Full(setFolder, file.Relative), file.Bytes, syncDirectory: false);
-        return new ManifestEntry(file.Relative, file.Kind, Convert.ToHexStringLower(SHA256.HashData(file.Bytes)));
+        byte[] bytes = file.Encode();
+        AtomicFile.WriteAllBytes(OutputLayout.Full(setFolder, file.Relative), bytes, syncDirectory: false);
+        return new ManifestEntry(file.Relative, file.Kind, Convert.ToHexStringLower(SHA256.HashData(bytes)));
     }
 
     /// <summary>The manifest goes last: once it names this run, every file it lists is complete and durable.</summary>
