@@ -1,3 +1,4 @@
+using System.Buffers;
 using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
@@ -30,10 +31,28 @@ internal static class HammingScan
         int lanes = path == Path.Scalar ? 0 : Avx512BW.IsSupported ? 8 : Avx2.IsSupported ? 4 : 0;
         int blocks = lanes == 0 ? 0 : b.Length / lanes;
         int vectorEnd = blocks * lanes;
-        ulong[] soa = WordMajor(b, lanes, blocks);
-        var best = new long[vectorEnd];
-        var bestIndex = new long[vectorEnd];
-        best.AsSpan().Fill(long.MaxValue);
+        // Pooled: a pair's buffers (about 200 KB for 4000 features) would otherwise land on the large-object heap every pair.
+        ulong[] soa = ArrayPool<ulong>.Shared.Rent(blocks * lanes * 4);
+        long[] best = ArrayPool<long>.Shared.Rent(vectorEnd);
+        long[] bestIndex = ArrayPool<long>.Shared.Rent(vectorEnd);
+        try
+        {
+            WordMajor(b, lanes, blocks, soa);
+            best.AsSpan(0, vectorEnd).Fill(long.MaxValue);
+            Rows(a, b, top, bBest, bBestIndex, lanes, blocks, soa, best, bestIndex);
+        }
+        finally
+        {
+            ArrayPool<ulong>.Shared.Return(soa);
+            ArrayPool<long>.Shared.Return(best);
+            ArrayPool<long>.Shared.Return(bestIndex);
+        }
+    }
+
+    private static void Rows(ReadOnlySpan<Descriptor256> a, ReadOnlySpan<Descriptor256> b, Span<(int D, int J)> top, Span<int> bBest,
+        Span<int> bBestIndex, int lanes, int blocks, ulong[] soa, long[] best, long[] bestIndex)
+    {
+        int vectorEnd = blocks * lanes;
         for (int i = 0; i < a.Length; i++)
         {
             var row = new Row(a[i]);
@@ -112,9 +131,8 @@ internal static class HammingScan
     }
 
     /// <summary>B's first <c>blocks x lanes</c> descriptors, block by block, word k of the block's descriptors side by side.</summary>
-    private static ulong[] WordMajor(ReadOnlySpan<Descriptor256> b, int lanes, int blocks)
+    private static void WordMajor(ReadOnlySpan<Descriptor256> b, int lanes, int blocks, ulong[] soa)
     {
-        var soa = new ulong[blocks * lanes * 4];
         for (int q = 0; q < blocks; q++)
         {
             for (int l = 0; l < lanes; l++)
@@ -127,7 +145,6 @@ internal static class HammingScan
                 soa[o + 3 * lanes] = d.W3;
             }
         }
-        return soa;
     }
 
     private static void Blocks512(ref Row row, int i, ulong[] soa, int blocks, long[] best, long[] bestIndex)

@@ -85,6 +85,11 @@ internal static class PairProfile
             var col = rows.Select(r => r[c]).Order().ToArray();
             Console.WriteLine(FormattableString.Invariant($"{names[c],-34} median {col[col.Length / 2],9:0.00}  mean {col.Average(),9:0.00}  max {col[^1],9:0.00}"));
         }
+        foreach (var (name, values) in Sub)
+        {
+            var col = values.Order().ToArray();
+            Console.WriteLine(FormattableString.Invariant($"{"  first estimate: " + name,-34} median {col[col.Length / 2],9:0.00}  mean {col.Average(),9:0.00}  max {col[^1],9:0.00}  (CPU)"));
+        }
         Console.WriteLine(FormattableString.Invariant($"results hash {hash:X16}"));
         return 0;
     }
@@ -106,12 +111,37 @@ internal static class PairProfile
         double coarse = Math.Max(options.Threshold, 1.5 * Math.Max(a.WorkingScale, b.WorkingScale));
         var first = PairEstimator.Estimate(points, a.FullSize, b.FullSize, options with { Threshold = coarse });
         double c2 = ThreadCpuClock.NowMilliseconds();
+        SubStages(points, a, options with { Threshold = coarse });
         if (first.Transform is { } model)
         {
             GuidedMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, model, new GuidedMatchOptions { Radius = 2 * coarse });
         }
         double c3 = ThreadCpuClock.NowMilliseconds();
         return new PartTimes(c1 - c0, c2 - c1, c3 - c2, result.Matches.Length);
+    }
+
+    private static readonly Dictionary<string, List<double>> Sub = [];
+
+    /// <summary>The first estimate's stages again, each on its own thread CPU clock (sampling, refinement, polish, runner-up).</summary>
+    private static void SubStages(Correspondence[] points, ImageFeatures a, EstimationOptions o)
+    {
+        void Add(string name, double ms) => (Sub.TryGetValue(name, out var l) ? l : Sub[name] = []).Add(ms);
+        double c0 = ThreadCpuClock.NowMilliseconds();
+        var sampled = PairEstimator.Sample(points, o);
+        double c1 = ThreadCpuClock.NowMilliseconds();
+        Add("sampling", c1 - c0);
+        if (sampled.Model is not { } model)
+        {
+            return;
+        }
+        var refined = ConsensusRefiner.Refine(points, model, o.Model, o.Threshold, o.Refiner);
+        double c2 = ThreadCpuClock.NowMilliseconds();
+        Add("refinement", c2 - c1);
+        var polish = PairEstimator.Polish(points, refined.Transform, a.FullSize, o);
+        double c3 = ThreadCpuClock.NowMilliseconds();
+        Add("polish", c3 - c2);
+        PairEstimator.RunnerUpConsensus(points, polish.Transform, polish.InlierIndices, a.FullSize, o);
+        Add("runner-up", ThreadCpuClock.NowMilliseconds() - c3);
     }
 
     private static ulong Mix(ulong hash, PairEstimate e, IReadOnlyList<Correspondence> ties)
