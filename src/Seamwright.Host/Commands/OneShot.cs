@@ -70,6 +70,7 @@ internal static class OneShot
                 System.Console.Error.WriteLine($"seamwright: no set found under {req.Within}");
                 return ExitCodes.BadArguments;
             }
+            RetireRemoved(session, all, req, log);
             var todo = ToRedo(session, sets, req.Force);
             if (todo.Count == 0)
             {
@@ -92,6 +93,23 @@ internal static class OneShot
             int code = Summarize(session, sets, outcomes, started.Elapsed, output, req.Strict);
             log.Information("Run finished in {Seconds:0.0} s with exit code {Code}", started.Elapsed.TotalSeconds, code);
             return code;
+        }
+    }
+
+    /// <summary>
+    /// A pass over the whole root (not `rerun` of a part of it) retires the sets the ledger holds
+    /// whose folders are gone: their outputs are removed and the ledger says retired.
+    /// </summary>
+    private static void RetireRemoved(RootSession session, IReadOnlyList<SetInputs> all, OneShotRequest req, ILogger log)
+    {
+        if (req.Within is not null || !session.ServedThisRootBefore)
+        {
+            return;
+        }
+        foreach (var id in SetRetirement.RetireMissing(session.Context, all.Select(s => s.SetId)))
+        {
+            System.Console.Out.WriteLine($"Set {id} retired: its folder was removed, so its outputs were removed");
+            log.Information("Set {Set} retired: its folder was removed, so its outputs were removed", id);
         }
     }
 

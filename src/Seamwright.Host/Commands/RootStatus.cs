@@ -4,7 +4,7 @@ using Seamwright.Pipeline.State;
 namespace Seamwright.Host.Commands;
 
 /// <summary>Counts of sets by state.</summary>
-internal sealed record SetCounts(int Total, int Done, int Pending, int Running, int Stale, int Failed, int Incomplete);
+internal sealed record SetCounts(int Total, int Done, int Pending, int Running, int Stale, int Failed, int Incomplete, int Retired = 0);
 
 /// <summary>Counts of input files by state.</summary>
 internal sealed record FileCounts(int Total, int Analysed, int Bad, int Waiting);
@@ -69,11 +69,11 @@ internal sealed record RootStatus(
             var runs = store.Runs();
             var live = store.Files().Where(f => f.State != "removed").ToList();
             var done = runs.Where(r => r.State == "done" && r.Summary is not null).ToList();
-            var current = sets.Where(s => s.DoneRun is not null).Select(s => runs.FirstOrDefault(r => r.RunId == s.DoneRun)?.Summary).OfType<RunSummary>().ToList();
+            var current = sets.Where(s => s.DoneRun is not null && s.State != SetStates.Retired).Select(s => runs.FirstOrDefault(r => r.RunId == s.DoneRun)?.Summary).OfType<RunSummary>().ToList();
             int Count(string state) => sets.Count(s => s.State == state);
             return new RootStatus(SchemaId, output, true,
                 new SetCounts(sets.Count, Count(SetStates.Done), Count(SetStates.Pending), Count(SetStates.Running), Count(SetStates.Stale), Count(SetStates.Failed),
-                    sets.Count(s => s.State == SetStates.Done && s.Incomplete)),
+                    sets.Count(s => s.State == SetStates.Done && s.Incomplete), Count(SetStates.Retired)),
                 new FileCounts(live.Count, live.Count(f => f.State == "analysed"), live.Count(f => f.State == "bad"), live.Count(f => f.State == "seen")),
                 new RunCounts(runs.Count, done.Count, runs.Count(r => r.State == "abandoned"), runs.Count(r => r.State == "running")),
                 new PairCounts(current.Sum(s => s.Pairs), current.Sum(s => s.Accepted), current.Sum(s => s.Weak), current.Sum(s => s.Rejected)),

@@ -104,7 +104,7 @@ internal static class StatusCommand
         {
             w.WriteLine($"Output root {s.OutputRoot}");
             var c = s.Sets;
-            w.WriteLine($"  sets: {c.Total} ({c.Done} done, {c.Pending} pending, {c.Running} running, {c.Stale} stale, {c.Failed} failed)");
+            w.WriteLine($"  sets: {c.Total} ({c.Done} done, {c.Pending} pending, {c.Running} running, {c.Stale} stale, {c.Failed} failed, {c.Retired} retired)");
             if (c.Incomplete > 0)
             {
                 w.WriteLine($"  {c.Incomplete} done sets were processed incomplete (maximum wait reached)");

@@ -58,8 +58,12 @@ internal sealed class RootTracker(int index, RootSession session)
 
     public IReadOnlyDictionary<string, TrackedSet> Sets => _sets;
 
-    /// <summary>Rebuilds from a full scan at start: sets already up to date are done, the rest wait (through the stability gate).</summary>
-    public void Start(DateTime now, double stableSeconds)
+    /// <summary>
+    /// Rebuilds from a full scan at start: sets already up to date are done, the rest wait (through
+    /// the stability gate); sets the ledger holds whose folders went while the service was stopped
+    /// are retired. Returns the ids retired.
+    /// </summary>
+    public List<string> Start(DateTime now, double stableSeconds)
     {
         foreach (var s in Session.Catalog.Discover())
         {
@@ -82,6 +86,29 @@ internal sealed class RootTracker(int index, RootSession session)
             }
             _sets[s.SetId] = t;
         }
+        return Session.ServedThisRootBefore ? SetRetirement.RetireMissing(Session.Context, _sets.Keys) : [];
+    }
+
+    /// <summary>
+    /// Retires the sets left without any input file (their folder removed) for at least
+    /// <paramref name="graceSeconds"/>, unless a run of theirs is queued or running (it is
+    /// abandoned as changed, and the set retired after it). A set the ledger never recorded is
+    /// only forgotten. Returns the ids retired; a set folder that comes back is a new set.
+    /// </summary>
+    public List<string> RetireEmptied(DateTime now, double graceSeconds)
+    {
+        var retired = new List<string>();
+        foreach (var set in _sets.Values.Where(s => s.Files.Count == 0 && s.Phase is not (SetPhase.Queued or SetPhase.Running)
+            && (now - s.LastChangeUtc).TotalSeconds >= graceSeconds).ToList())
+        {
+            if (Session.Context.Store.GetSet(set.Id) is { State: not SetStates.Retired })
+            {
+                SetRetirement.Retire(Session.Context, set.Id);
+                retired.Add(set.Id);
+            }
+            _sets.Remove(set.Id);
+        }
+        return retired;
     }
 
     /// <summary>

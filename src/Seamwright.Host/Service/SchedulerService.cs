@@ -20,8 +20,9 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
             var trackers = runtime.Roots.Select((s, i) => new RootTracker(i, s)).ToList();
             foreach (var t in trackers)
             {
-                t.Start(DateTime.UtcNow, runtime.Options.Service.StableSeconds);
+                var retired = t.Start(DateTime.UtcNow, runtime.Options.Service.StableSeconds);
                 LogStarted(log, t.Session.Catalog.RootPath, t.Sets.Count, t.Sets.Values.Count(s => s.Phase == SetPhase.Done));
+                Retired(t, retired, runtime.Ops);
             }
             var pending = new Queue<SetJob>();
             var ops = runtime.Ops;
@@ -94,6 +95,19 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
                     found.ForEach(p => ops?.Missed?.Suspect(t.Index, p));
                 }
             }
+        }
+        foreach (var t in trackers)
+        {
+            Retired(t, t.RetireEmptied(now, runtime.Options.Service.StableSeconds), ops);
+        }
+    }
+
+    private void Retired(RootTracker t, List<string> sets, ServiceOperations? ops)
+    {
+        foreach (var set in sets)
+        {
+            ops?.Metrics.RecordSet(Pipeline.State.SetStates.Retired);
+            LogRetired(log, set, t.Session.Catalog.RootPath);
         }
     }
 
@@ -223,6 +237,9 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Root {Root}: {Sets} sets found at start, {Done} already up to date")]
     private static partial void LogStarted(ILogger logger, string root, int sets, int done);
+
+    [LoggerMessage(Level = LogLevel.Information, Message = "Set {Set} of {Root} retired: its folder was removed, so its outputs were removed")]
+    private static partial void LogRetired(ILogger logger, string set, string root);
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Set {Set} is ready with {Files} images (incomplete: {Incomplete})")]
     private static partial void LogReady(ILogger logger, string set, int files, bool incomplete);

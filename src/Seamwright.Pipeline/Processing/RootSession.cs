@@ -34,6 +34,13 @@ public sealed class RootSession : IDisposable
 
     public bool OutputOnNetworkShare { get; private set; }
 
+    /// <summary>
+    /// The output root recorded serving this same watched root before this session opened it. Only
+    /// then do ledger sets missing from the root mean removed set folders (<see cref="SetRetirement"/>),
+    /// rather than sets of another root that shared the output root.
+    /// </summary>
+    public bool ServedThisRootBefore { get; private set; }
+
     public static RootSession Open(RootSettings root, SeamwrightOptions options, IPairEngine engine, MemoryBudget budget,
         SemaphoreSlim jobSlots, IProcessingObserver observer)
     {
@@ -52,6 +59,7 @@ public sealed class RootSession : IDisposable
         try
         {
             int swept = shared ? AtomicFile.SweepTemporaries(output, AtomicFile.WriterTagFor(node)) : AtomicFile.SweepTemporaries(output);
+            string? before = WatchedRootRecord.Read(output);
             WatchedRootRecord.Write(output, root.Path);
             var store = StateStore.Open(output, options.State);
             var recovered = store.RecoverInterrupted(node);
@@ -79,6 +87,7 @@ public sealed class RootSession : IDisposable
                 SweptTemporaries = swept,
                 RecoveredSets = recovered,
                 OutputOnNetworkShare = StoragePlace.IsNetworkPath(output),
+                ServedThisRootBefore = before == WatchedRootRecord.Read(output),
             };
         }
         catch

@@ -8,6 +8,8 @@ public static class SetStates
     public const string Done = "done";
     public const string Stale = "stale";
     public const string Failed = "failed";
+    /// <summary>Its inputs are gone (set folder removed) and its outputs were removed; processed again if it comes back.</summary>
+    public const string Retired = "retired";
 }
 
 /// <summary>A set as the ledger knows it.</summary>

@@ -31,7 +31,7 @@ internal static class StateSchema
         CREATE INDEX IF NOT EXISTS files_by_set ON files(set_id);
         CREATE TABLE IF NOT EXISTS sets (
             set_id TEXT PRIMARY KEY,
-            state TEXT NOT NULL,            -- pending | running | done | stale | failed
+            state TEXT NOT NULL,            -- pending | running | done | stale | failed | retired
             profile TEXT NOT NULL,
             fingerprint TEXT,               -- of the last finished run
             inputs TEXT,                    -- digest of (file, size, mtime) of the last finished run

@@ -208,6 +208,17 @@ public sealed partial class StateStore : IDisposable
     public void SetState(string setId, string state, string profile, string? reason = null) =>
         Exec(UpsertSetState, ("s", setId), ("st", state), ("p", profile), ("why", reason), ("t", DateTime.UtcNow.Ticks));
 
+    /// <summary>Records a set as retired (its inputs gone, its outputs removed) and its files as removed, in one transaction.</summary>
+    public void RetireSet(string setId, string profile, string reason) => _ledger.Use(db =>
+    {
+        using var tx = db.BeginTransaction();
+        long now = DateTime.UtcNow.Ticks;
+        Exec(db, tx, UpsertSetState, ("s", setId), ("st", SetStates.Retired), ("p", profile), ("why", reason), ("t", now));
+        Exec(db, tx, "UPDATE files SET state='removed' WHERE set_id=@s AND state!='removed'", ("s", setId));
+        tx.Commit();
+        return 0;
+    });
+
     private static SetRecord ReadSet(DbDataReader r) => new(
         r.GetString(0), r.GetString(1), r.GetString(2), r.IsDBNull(3) ? null : r.GetString(3), r.IsDBNull(4) ? null : r.GetString(4),
         r.IsDBNull(5) ? null : L(r, 5), L(r, 6) != 0, r.IsDBNull(7) ? null : r.GetString(7),

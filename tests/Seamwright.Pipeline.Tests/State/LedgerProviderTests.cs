@@ -67,6 +67,28 @@ public class LedgerProviderTests(ITestOutputHelper output)
         Assert.NotNull(store.RunStartedUtc(second));
     }
 
+    [Theory]
+    [MemberData(nameof(Providers))]
+    public void RetireSet_DoneSet_RetiredWithReasonItsFilesRemovedOthersKeptOnEitherProvider(string provider)
+    {
+        using var dir = new ScratchFolder();
+        using var store = Open(provider, dir.Path);
+        if (store is null)
+        {
+            return;
+        }
+        store.ObserveFiles([("a/1.png", "a", 10L, 1L), ("b/1.png", "b", 10L, 1L)]);
+        long run = store.BeginRun("a", "maps", "fp1", "1.0.0");
+        store.FinishRun(run, "a", "fp1", "digest", new RunSummary(1, 0, 0, 0, 0, 0, false), [], [new FileOutcome("a/1.png", 10, 1, "h1", true, null)]);
+
+        store.RetireSet("a", "maps", "set folder removed");
+
+        var set = store.GetSet("a")!;
+        Assert.Equal((SetStates.Retired, "maps", "set folder removed", (long?)run), (set.State, set.Profile, set.Reason, set.DoneRun));
+        Assert.Equal(["removed"], store.Files("a").Select(f => f.State));
+        Assert.Equal(["seen"], store.Files("b").Select(f => f.State));
+    }
+
     [Fact]
     public void Open_SqliteLedgerOfVersion1_MigratedToCurrentKeepingRows()
     {
