@@ -73,9 +73,9 @@ public static class PairProcessor
             final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options) with { Threshold = threshold };
         }
 
-        if (final.Status != PairStatus.Accepted && RepeatedPattern(a, b, settings) is { } repeated)
+        if (final.Status != PairStatus.Accepted)
         {
-            final = final with { Reasons = [repeated, .. final.Reasons] };
+            final = TooRigidModel.Explain(matches, a.FullSize, b.FullSize, options with { Threshold = coarse }, final) ?? WithRepeatedPattern(final, a, b, settings);
         }
         var tiePoints = new Correspondence[final.InlierIndices.Length];
         for (int i = 0; i < tiePoints.Length; i++)
@@ -158,6 +158,10 @@ public static class PairProcessor
         }
         return count;
     }
+
+    /// <summary>The estimate with a repeated-pattern reason first when either image is strongly self-similar.</summary>
+    private static PairEstimate WithRepeatedPattern(PairEstimate final, ImageFeatures a, ImageFeatures b, PairSettings settings) =>
+        RepeatedPattern(a, b, settings) is { } repeated ? final with { Reasons = [repeated, .. final.Reasons] } : final;
 
     /// <summary>A reason naming a repeated pattern when either image is strongly self-similar, else null.</summary>
     private static string? RepeatedPattern(ImageFeatures a, ImageFeatures b, PairSettings settings)
