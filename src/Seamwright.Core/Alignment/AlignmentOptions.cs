@@ -21,8 +21,21 @@ public sealed record AlignmentOptions
     /// <summary>Work cap on cycles examined (never a time cap, so results do not depend on load).</summary>
     public int MaxCycles { get; init; } = 20000;
 
-    /// <summary>Scale of the Cauchy loss in pixels: residuals well above it lose influence.</summary>
+    /// <summary>
+    /// Scale of the Cauchy loss in pixels: residuals well above it lose influence. With
+    /// <see cref="AdaptRobustScale"/> the widest scale: the first pass uses it, the second the scale
+    /// matched to the tie points' noise, never above it.
+    /// </summary>
     public double RobustScalePx { get; init; } = 2;
+
+    /// <summary>
+    /// Refine a second time with the Cauchy scale matched to the tie points' noise under the first
+    /// solution (default true; see <see cref="JointRefiner"/>); false keeps the fixed scale.
+    /// </summary>
+    public bool AdaptRobustScale { get; init; } = true;
+
+    /// <summary>Smallest matched Cauchy scale, px: below a few hundredths of a pixel tie points are not localised (judgement).</summary>
+    public double MinRobustScalePx { get; init; } = 0.05;
 
     /// <summary>A link whose median tie-point residual under the joint solution exceeds this is demoted.</summary>
     public double LinkResidualLimitPx { get; init; } = 5;
@@ -56,6 +69,7 @@ public sealed record AlignmentOptions
         Check(MaxCycleLength >= 3 && MaxCycleLength <= 12, nameof(MaxCycleLength), "3..12");
         Check(MaxCycles >= 0, nameof(MaxCycles), ">= 0");
         Check(RobustScalePx > 0, nameof(RobustScalePx), "> 0");
+        Check(MinRobustScalePx > 0, nameof(MinRobustScalePx), "> 0");
         Check(LinkResidualLimitPx > 0, nameof(LinkResidualLimitPx), "> 0");
         Check(MaxIterations >= 1, nameof(MaxIterations), ">= 1");
         Check(MaxTiePointsPerLink >= 4, nameof(MaxTiePointsPerLink), ">= 4");

@@ -37,8 +37,8 @@ internal sealed class LinkGraph
             {
                 // Least-squares fit of the link to its own tie points (reference A): the cycle check
                 // measures what the tie points say, not how a rough estimate extrapolates.
-                var fit = new JointRefiner(m, sizes, link.ImageA, [link.ImageA, link.ImageB], [(link.ImageA, link.ImageB, link.TiePoints)], robustScalePx)
-                    .Solve(new Dictionary<int, Transform2D> { [link.ImageA] = Transform2D.Identity, [link.ImageB] = Backward[l] }, 30);
+                var fit = new JointRefiner(m, sizes, link.ImageA, [link.ImageA, link.ImageB], [(link.ImageA, link.ImageB, link.TiePoints)], robustScalePx, robustScalePx)
+                    .Solve(new Dictionary<int, Transform2D> { [link.ImageA] = Transform2D.Identity, [link.ImageB] = Backward[l] }, 30, adaptScale: false);
                 var bToA = fit.ToReference[link.ImageB];
                 if (bToA.IsFinite && TransformOps.TryOrientedInverse(bToA, ax, ay, out var aToB))
                 {

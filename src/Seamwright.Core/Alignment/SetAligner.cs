@@ -156,8 +156,9 @@ public static class SetAligner
                     .Where(l => graph.Active[l] && inComponent.Contains(_links[l].ImageA) && inComponent.Contains(_links[l].ImageB))
                     .ToArray();
                 var refiner = new JointRefiner(model, sizes, reference, members,
-                    [.. componentLinks.Select(l => (_links[l].ImageA, _links[l].ImageB, _links[l].TiePoints))], options.RobustScalePx);
-                var joint = options.JointRefinement ? refiner.Solve(initial, options.MaxIterations) : new JointSolution(initial, 0, 0, 0);
+                    [.. componentLinks.Select(l => (_links[l].ImageA, _links[l].ImageB, _links[l].TiePoints))], options.RobustScalePx, options.MinRobustScalePx);
+                var joint = options.JointRefinement ? refiner.Solve(initial, options.MaxIterations, options.AdaptRobustScale)
+                    : new JointSolution(initial, 0, 0, 0, options.RobustScalePx);
                 var solved = joint.ToReference.ToDictionary(kv => kv.Key, kv => TransformOps.Orient(kv.Value, 0, 0).Normalized());
                 if (ExcludeOffPlane(solved, reference, Allowed, "joint solution"))
                 {

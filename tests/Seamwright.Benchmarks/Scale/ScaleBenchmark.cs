@@ -8,8 +8,8 @@ using Seamwright.Tests.Shared;
 namespace Seamwright.Benchmarks.Scale;
 
 /// <summary>
-/// <c>scale N [--seed S] [--cache DIR] [--rerun] [--keep] [-- overrides...]</c>: generates (or
-/// reuses) a grid of N tiles of 640 x 480, runs the real <c>seamwright run</c> on it as a child
+/// <c>scale N [--sweep] [--seed S] [--cache DIR] [--rerun] [--keep] [-- overrides...]</c>: generates
+/// (or reuses) a grid of N tiles of 640 x 480 (with <c>--sweep</c> one row of N tiles), runs the real <c>seamwright run</c> on it as a child
 /// process and prints wall time, peak resident memory (from /proc, outside the process), time
 /// per stage and the median corner error against the generator's truth. With <c>--rerun</c> one
 /// tile is then replaced (same view, new sensor noise, as a re-shot tile) and the set run again.
@@ -22,12 +22,12 @@ internal static class ScaleBenchmark
     {
         if (args.Length == 0 || !int.TryParse(args[0], CultureInfo.InvariantCulture, out int n) || n < 4)
         {
-            Console.Error.WriteLine("usage: scale N [--seed S] [--cache DIR] [--rerun] [--keep] [--Seamwright:...=value ...]");
+            Console.Error.WriteLine("usage: scale N [--sweep] [--seed S] [--cache DIR] [--rerun] [--keep] [--Seamwright:...=value ...]");
             return 2;
         }
         ulong seed = 11;
         string cache = Path.Combine(Path.GetTempPath(), "seamwright-scale");
-        bool rerun = false, keep = false;
+        bool rerun = false, keep = false, sweep = false;
         var overrides = new List<string>();
         for (int i = 1; i < args.Length; i++)
         {
@@ -37,11 +37,12 @@ internal static class ScaleBenchmark
                 case "--cache": cache = args[++i]; break;
                 case "--rerun": rerun = true; break;
                 case "--keep": keep = true; break;
+                case "--sweep": sweep = true; break;
                 default: overrides.Add(args[i]); break;
             }
         }
         var clock = System.Diagnostics.Stopwatch.StartNew();
-        string grid = ScaleGrid.Ensure(n, seed, cache);
+        string grid = ScaleGrid.Ensure(n, seed, cache, sweep);
         Console.WriteLine($"grid: {n} tiles of {ScaleGrid.TileWidth}x{ScaleGrid.TileHeight} in {grid} (ready in {clock.Elapsed.TotalSeconds:0.0} s)");
         string work = Path.Combine(cache, "work-" + Environment.ProcessId.ToString(CultureInfo.InvariantCulture));
         string input = Path.Combine(work, "input");
@@ -58,7 +59,7 @@ internal static class ScaleBenchmark
             Accuracy(grid, output);
             if (rerun)
             {
-                ReplaceOneTile(n, seed, input);
+                ReplaceOneTile(n, seed, input, sweep);
                 var second = RunOnce("rerun, one tile replaced", dll, input, output, overrides);
                 if (second is null)
                 {
@@ -120,10 +121,10 @@ internal static class ScaleBenchmark
     }
 
     /// <summary>The middle tile of the first row rendered again with other noise (a re-shot tile).</summary>
-    private static void ReplaceOneTile(int n, ulong seed, string input)
+    private static void ReplaceOneTile(int n, ulong seed, string input, bool sweep)
     {
-        var tiles = ScaleGrid.Layout(n, seed);
-        var t = tiles[Math.Min(n - 1, ScaleGrid.Columns(n) / 2)];
+        var tiles = ScaleGrid.Layout(n, seed, sweep);
+        var t = tiles[Math.Min(n - 1, ScaleGrid.Columns(n, sweep) / 2)];
         var scene = new ProceduralScene(seed, SceneStyle.EstateMap);
         var pixels = SceneRenderer.Render(scene, ScaleGrid.TileWidth, ScaleGrid.TileHeight, t.ToScene, samplesPerAxis: 1);
         pixels = ImageEffects.AdjustBrightnessContrast(pixels, t.Contrast, t.Brightness);

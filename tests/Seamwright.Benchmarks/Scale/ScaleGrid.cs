@@ -11,7 +11,8 @@ namespace Seamwright.Benchmarks.Scale;
 /// project's own procedural scene (estate-map style) and written as JPEGs with a
 /// <c>_truth.json</c> in the demo's convention. Each tile is placed on a regular pitch (about
 /// 30 % overlap) with a seeded small rotation, scale and shift, like a sheet shifting on a
-/// scanner bed. Rendering costs about a microsecond per sample, so tiles use one sample per
+/// scanner bed. With <c>sweep</c> the N tiles form one row (a long flat sweep, issue 10's
+/// 100-frame case) on the same pitch. Rendering costs about a microsecond per sample, so tiles use one sample per
 /// pixel and the grid is cached on disk under /tmp, keyed by N, size and seed.
 /// </summary>
 internal static class ScaleGrid
@@ -20,14 +21,14 @@ internal static class ScaleGrid
     public const int TileHeight = 480;
 
     /// <summary>Columns of the grid for N tiles: the near-square layout, rows filled first.</summary>
-    public static int Columns(int n) => (int)Math.Ceiling(Math.Sqrt(n));
+    public static int Columns(int n, bool sweep = false) => sweep ? n : (int)Math.Ceiling(Math.Sqrt(n));
 
     public static string Name(int row, int col) => $"t_r{row + 1:000}_c{col + 1:000}.jpg";
 
     /// <summary>The cached grid folder (the set is its subfolder <c>grid</c>); rendered when missing.</summary>
-    public static string Ensure(int n, ulong seed, string cacheRoot)
+    public static string Ensure(int n, ulong seed, string cacheRoot, bool sweep = false)
     {
-        string root = Path.Combine(cacheRoot, $"grid-{n}-{TileWidth}x{TileHeight}-s{seed}");
+        string root = Path.Combine(cacheRoot, $"{(sweep ? "sweep" : "grid")}-{n}-{TileWidth}x{TileHeight}-s{seed}");
         string set = Path.Combine(root, "input", "grid");
         string done = Path.Combine(root, "complete");
         if (File.Exists(done))
@@ -35,7 +36,7 @@ internal static class ScaleGrid
             return root;
         }
         Directory.CreateDirectory(set);
-        var tiles = Layout(n, seed);
+        var tiles = Layout(n, seed, sweep);
         var scene = new ProceduralScene(seed, SceneStyle.EstateMap);
         int rendered = 0;
         var clock = System.Diagnostics.Stopwatch.StartNew();
@@ -56,7 +57,7 @@ internal static class ScaleGrid
                 Console.Error.WriteLine($"  rendered {k} / {n} tiles ({clock.Elapsed.TotalSeconds:0} s)");
             }
         });
-        var reference = tiles[Index(n, (Rows(n) - 1) / 2, (Columns(n) - 1) / 2)];
+        var reference = tiles[Index(n, (Rows(n, sweep) - 1) / 2, (Columns(n, sweep) - 1) / 2, sweep)];
         var toRef = reference.ToScene.Inverse();
         var truth = new DemoTruth(reference.Name, tiles.ToDictionary(t => t.Name, t => t.Name == reference.Name ? Transform2D.Identity : toRef * t.ToScene, StringComparer.Ordinal));
         AtomicFile.WriteAllBytes(Path.Combine(root, DemoTruth.FileName), truth.ToJson());
@@ -64,16 +65,16 @@ internal static class ScaleGrid
         return root;
     }
 
-    public static int Rows(int n) => (n + Columns(n) - 1) / Columns(n);
+    public static int Rows(int n, bool sweep = false) => (n + Columns(n, sweep) - 1) / Columns(n, sweep);
 
-    private static int Index(int n, int row, int col) => Math.Min(n - 1, row * Columns(n) + col);
+    private static int Index(int n, int row, int col, bool sweep) => Math.Min(n - 1, row * Columns(n, sweep) + col);
 
     internal sealed record Tile(string Name, Transform2D ToScene, double Contrast, double Brightness, ulong NoiseSeed);
 
     /// <summary>Placement of every tile (row-major): pitch 448 x 336 px (30 % overlap), rotation up to 1 degree, scale within 1 %, shift up to 8 px.</summary>
-    public static List<Tile> Layout(int n, ulong seed)
+    public static List<Tile> Layout(int n, ulong seed, bool sweep = false)
     {
-        int cols = Columns(n);
+        int cols = Columns(n, sweep);
         var rng = new Xoshiro256StarStar(seed ^ 0x5CA1E0000000000UL);
         double U() => 2 * rng.NextDouble() - 1;
         var tiles = new List<Tile>(n);
