@@ -88,7 +88,7 @@ public static class OverlapPrediction
         var notExpected = new List<PredictedPair>();
         foreach (var (a, b) in planned)
         {
-            if (Both(result, sizes, a, b) is double f && f < NotExpectedBelow)
+            if (Shared(result, sizes, a, b) is double f && f < NotExpectedBelow)
             {
                 notExpected.Add(new PredictedPair(a, b, f));
             }
@@ -98,7 +98,7 @@ public static class OverlapPrediction
         {
             for (int b = a + 1; b < sizes.Count; b++)
             {
-                if (!plannedSet.Contains((a, b)) && Both(result, sizes, a, b) is double f && f >= AddAtOrAbove)
+                if (!plannedSet.Contains((a, b)) && Shared(result, sizes, a, b) is double f && f >= AddAtOrAbove)
                 {
                     toAdd.Add(new PredictedPair(a, b, f));
                 }
@@ -107,7 +107,7 @@ public static class OverlapPrediction
         return (notExpected, toAdd);
     }
 
-    /// <summary>The larger of the two directions' shares (a small image inside a large one overlaps fully one way).</summary>
-    private static double? Both(SetModelResult result, IReadOnlyList<ImageSize> sizes, int a, int b) =>
+    /// <summary>The larger of the two directions' shares (a small image inside a large one overlaps fully one way); null when either is not placed.</summary>
+    public static double? Shared(SetModelResult result, IReadOnlyList<ImageSize> sizes, int a, int b) =>
         Fraction(result, sizes, a, b) is double ab && Fraction(result, sizes, b, a) is double ba ? Math.Max(ab, ba) : null;
 }

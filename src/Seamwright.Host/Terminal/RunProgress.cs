@@ -94,6 +94,13 @@ internal sealed class RunProgress(ILogger log, bool interactive) : IProcessingOb
     public void PairsCounted(string setId, int estimated, int reused) =>
         log.Information("Set {Set}: {Estimated} pairs estimated, {Reused} reused from the pair cache", setId, estimated, reused);
 
+    public void AlignmentTimed(string setId, AlignmentTimes times)
+    {
+        ArgumentNullException.ThrowIfNull(times);
+        log.Information("Set {Set}: set model and alignment {SetModelMs} ms (overlap planning {PlanningMs} ms, final alignment {AlignMs} ms), preview and report {VisualsMs} ms",
+            setId, Math.Round(times.SetModelMs), Math.Round(times.OverlapPlanningMs), Math.Round(times.AlignMs), Math.Round(times.VisualsMs));
+    }
+
     public void SetFinished(SetOutcome outcome)
     {
         ArgumentNullException.ThrowIfNull(outcome);

@@ -22,21 +22,31 @@ public sealed record AlignmentStageResult(
     SetVisualOutputs Visuals,
     SetModelResult SetModel,
     SidecarCamera?[] Cameras,
-    string?[] ToReferenceReasons);
+    string?[] ToReferenceReasons)
+{
+    /// <summary>Time spent choosing the set model and aligning in it, ms (0 when a set model computed earlier from the same pairs was used).</summary>
+    public double AlignMs { get; init; }
+
+    /// <summary>Time spent on the preview and the report, ms.</summary>
+    public double VisualsMs { get; init; }
+}
 
 /// <summary>Runs the alignment of one set and builds everything it contributes to the outputs.</summary>
 public static class SetAlignmentStage
 {
     public static AlignmentStageResult Run(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
         IReadOnlyList<string> paths, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings,
-        PreviewImageOpener? open = null, Report.ReportProvenance? provenance = null)
+        PreviewImageOpener? open = null, Report.ReportProvenance? provenance = null, SetModelResult? computed = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(settings);
         var names = images.Select(i => i.Name).ToList();
         var sizes = images.Select(i => i.Size).ToArray();
-        var setModel = SetModelSelector.Align(sizes, SetCameras.Of(sizes), SetAlignmentInputs.Links(pairs), model, settings.SetModel,
+        long start = System.Diagnostics.Stopwatch.GetTimestamp();
+        // A set model computed from exactly these pairs under the same settings (overlap planning's last forecast) is the same result: not computed twice.
+        var setModel = computed ?? SetModelSelector.Align(sizes, SetCameras.Of(sizes), SetAlignmentInputs.Links(pairs), model, settings.SetModel,
             settings.ToOptions(names), settings.ToRotationOptions());
+        double alignMs = computed is null ? System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds : 0;
         var alignment = setModel.Alignment;
         var references = alignment.Images.Select(p => p.Reference is int r ? names[r] : null).ToArray();
         var rows = alignment.Images.Select(p => p.ToReference?.ToRows()).ToArray();
@@ -44,8 +54,10 @@ public static class SetAlignmentStage
             .Select(i => setModel.Rotation?.Poses[i] is { } pose ? SidecarCamera.From(pose) : null).ToArray();
         var reasons = alignment.Images.Select(p => p.IsPlaced ? null : p.Reason ?? "not placed").ToArray();
         open ??= new PreviewFiles(paths).Open;
+        start = System.Diagnostics.Stopwatch.GetTimestamp();
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
             new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel, provenance);
+        double visualsMs = System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         var manifest = ManifestAlignment.From(alignment, names) with { SetModel = ManifestSetModel.From(setModel) };
         if (setModel.IsRotation)
         {
@@ -56,6 +68,6 @@ public static class SetAlignmentStage
                 Components = [.. manifest.Components.Select(c => c with { Images = [.. names.Where((_, i) => setModel.Rotation!.Poses[i] is not null)] })],
             };
         }
-        return new AlignmentStageResult(alignment, manifest, references, rows, visuals, setModel, cameras, reasons);
+        return new AlignmentStageResult(alignment, manifest, references, rows, visuals, setModel, cameras, reasons) { AlignMs = alignMs, VisualsMs = visualsMs };
     }
 }

@@ -15,7 +15,15 @@ public sealed record PlanImage(string Key, DateTimeOffset? CaptureTime, float[] 
 public readonly record struct PlannedPair(int A, int B);
 
 /// <summary>The plan: the pairs and the images that could not take part, with reasons.</summary>
-public sealed record PairPlan(IReadOnlyList<PlannedPair> Pairs, IReadOnlyList<(string Key, string Reason)> Skipped);
+public sealed record PairPlan(IReadOnlyList<PlannedPair> Pairs, IReadOnlyList<(string Key, string Reason)> Skipped)
+{
+    /// <summary>
+    /// Indices into <see cref="Pairs"/> of the pairs estimated only where the alignment of the other
+    /// pairs does not rule out an overlap (sequence pairs two or more steps apart, grid diagonals;
+    /// see <see cref="OverlapPlanning"/>). Empty: every pair is estimated.
+    /// </summary>
+    public IReadOnlySet<int> Conditional { get; init; } = new HashSet<int>();
+}
 
 /// <summary>Chooses which image pairs of a set are estimated.</summary>
 public static class PairPlanner
@@ -65,6 +73,7 @@ public static class PairPlanner
         }
         int n = order.Length;
         var pairs = new List<PlannedPair>();
+        var conditional = new HashSet<int>();
         var seen = new HashSet<(int, int)>();
         for (int i = 0; i < n; i++)
         {
@@ -86,11 +95,15 @@ public static class PairPlanner
                 var key = (Math.Min(order[i], order[j]), Math.Max(order[i], order[j]));
                 if (seen.Add(key))
                 {
+                    if (k >= 2)
+                    {
+                        conditional.Add(pairs.Count);
+                    }
                     pairs.Add(new PlannedPair(order[i], order[j]));
                 }
             }
         }
-        return new PairPlan(pairs, []);
+        return new PairPlan(pairs, []) { Conditional = conditional };
     }
 
     /// <summary>4-neighbours (and diagonals by setting) of a row/column grid read from the file names.</summary>
@@ -116,17 +129,22 @@ public static class PairPlanner
         }
         var steps = s.GridDiagonals ? new (long, long)[] { (0, 1), (1, 0), (1, 1), (1, -1) } : [(0, 1), (1, 0)];
         var pairs = new List<PlannedPair>();
+        var conditional = new HashSet<int>();
         foreach (var ((row, col), i) in at.OrderBy(kv => kv.Key.Row).ThenBy(kv => kv.Key.Col))
         {
             foreach (var (dr, dc) in steps)
             {
                 if (at.TryGetValue((row + dr, col + dc), out int j))
                 {
+                    if (dr != 0 && dc != 0)
+                    {
+                        conditional.Add(pairs.Count);
+                    }
                     pairs.Add(new PlannedPair(i, j));
                 }
             }
         }
-        return new PairPlan(pairs, skipped);
+        return new PairPlan(pairs, skipped) { Conditional = conditional };
     }
 
     /// <summary>

@@ -20,13 +20,15 @@ public sealed class AlignmentStep(ProcessingContext ctx)
         // decode in the shared memory budget like any other decode.
         var paths = pairs.Images.Select(g => g.File.FullPath).ToList();
         var files = new PreviewFiles(paths);
-        return SetAlignmentStage.Run(run.SetId, run.RunId.ToString(CultureInfo.InvariantCulture), run.Fingerprint, images, paths, aligned,
+        var result = SetAlignmentStage.Run(run.SetId, run.RunId.ToString(CultureInfo.InvariantCulture), run.Fingerprint, images, paths, aligned,
             run.Profile.Estimation.MotionModel, run.Profile.Alignment,
             (i, side) =>
             {
                 long bytes = 4L * images[i].Size.Width * images[i].Size.Height;
                 using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
                 return files.Open(i, side);
-            }, provenance);
+            }, provenance, pairs.SetModel);
+        ctx.Observer.AlignmentTimed(run.SetId, new AlignmentTimes(pairs.OverlapPlanningMs, result.AlignMs, result.VisualsMs));
+        return result;
     }
 }

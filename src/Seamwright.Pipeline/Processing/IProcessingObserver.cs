@@ -18,6 +18,9 @@ public interface IProcessingObserver
     /// <summary>After the pairs: how many were estimated and how many came from the pair-result cache.</summary>
     void PairsCounted(string setId, int estimated, int reused) { }
 
+    /// <summary>After the alignment stage: where the set's alignment time went.</summary>
+    void AlignmentTimed(string setId, AlignmentTimes times) { }
+
     void SetFinished(SetOutcome outcome);
 }
 
@@ -37,6 +40,13 @@ public sealed class NullObserver : IProcessingObserver
     public void PairDone(string setId, string imageA, string imageB, PairStatus status, IReadOnlyList<string> reasons) { }
 
     public void SetFinished(SetOutcome outcome) { }
+}
+
+/// <summary>Alignment time of one set, ms: overlap planning's forecasts (in the pairs stage), the set model and alignment, the preview and report.</summary>
+public sealed record AlignmentTimes(double OverlapPlanningMs, double AlignMs, double VisualsMs)
+{
+    /// <summary>Every set-model computation of the set: the forecasts and the final alignment.</summary>
+    public double SetModelMs => OverlapPlanningMs + AlignMs;
 }
 
 /// <summary>What became of one set.</summary>

@@ -1,3 +1,4 @@
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Alignment;
 using Seamwright.Pipeline.Analysis;
@@ -15,6 +16,15 @@ public sealed record PairResult(int A, int B, PairAnalysis Analysis, double Pair
 /// <summary>The pairs stage's result: the good images (analysed), the plan over them and one result per planned pair, in plan order, followed by the pairs overlap planning added.</summary>
 public sealed record PairStageResult(IReadOnlyList<AnalysedImage> Images, PairPlan Plan, IReadOnlyList<PairResult> Pairs)
 {
+    /// <summary>
+    /// The set model computed by overlap planning from exactly <see cref="Pairs"/> under the run's
+    /// settings (the alignment stage then uses it instead of computing it again); null when none was.
+    /// </summary>
+    public SetModelResult? SetModel { get; init; }
+
+    /// <summary>Time spent forecasting overlaps (set models of the pairs so far), ms.</summary>
+    public double OverlapPlanningMs { get; init; }
+
     public string KeyA(PairResult pair) => Images[pair.A].Key;
 
     public string KeyB(PairResult pair) => Images[pair.B].Key;
@@ -36,16 +46,13 @@ public sealed class PairStage(ProcessingContext ctx)
         var plan = PairPlanner.Plan(run.Profile.Pairing, good.Select(g => new PlanImage(g.Key, g.Analysis!.CaptureTime, g.Analysis.Coarse)).ToList());
         ctx.Observer.PairsPlanned(run.SetId, plan.Pairs.Count);
         var review = run.Profile.Pairing.Mode == PairingMode.Frames ? ctx.Review : null;
-        var results = Estimate(run, good, plan.Pairs, report: review is null, cancel);
         if (review is not null)
         {
-            Review(review, run, good, results);
+            var reviewed = Estimate(run, good, plan.Pairs, report: false, cancel);
+            Review(review, run, good, reviewed);
+            return new PairStageResult(good, plan, reviewed);
         }
-        else
-        {
-            results = PlanByOverlap(run, good, results, cancel);
-        }
-        return new PairStageResult(good, plan, results);
+        return PlanByOverlap(run, good, plan, cancel);
     }
 
     /// <summary>Estimates every planned pair (or takes it from the pair-result cache) through <see cref="PairRunner"/>.</summary>
@@ -57,25 +64,95 @@ public sealed class PairStage(ProcessingContext ctx)
     }
 
     /// <summary>
-    /// Overlap-aware planning: from the alignment of the first links, pairs predicted to overlap
-    /// but not planned (the wrap of a full turn, a neighbouring row) are estimated and added; planned
-    /// pairs that were not accepted and are predicted not to overlap are marked so and stop counting
-    /// as failures (<see cref="OverlapPlanning"/>).
+    /// Overlap-aware planning (<see cref="OverlapPlanning"/>): the plan's unconditional pairs are
+    /// estimated first; its conditional pairs only where the set model of those does not rule out an
+    /// overlap (the others are recorded as not expected to overlap, never estimated); then pairs
+    /// forecast to overlap but not planned (the wrap of a full turn, a neighbouring row) are
+    /// estimated and added, and pairs not accepted that the last forecast rules out are marked so
+    /// (they stop counting as failures). A forecast is recomputed only after new pairs were
+    /// estimated; the last one is handed to the alignment stage when it saw every link.
     /// </summary>
-    private PairResult[] PlanByOverlap(SetRun run, List<AnalysedImage> good, PairResult[] pairResults, CancellationToken cancel)
+    private PairStageResult PlanByOverlap(SetRun run, List<AnalysedImage> good, PairPlan plan, CancellationToken cancel)
     {
         var images = good.Select(g => new AlignedImage(g.Key, g.Analysis!.Size)).ToList();
         var model = run.Profile.Estimation.MotionModel;
-        var toAdd = OverlapPlanning.ToAdd(images, Aligned(pairResults), model, run.Profile.Alignment);
+        var settings = run.Profile.Alignment;
+        double planningMs = 0;
+        OverlapForecast? Forecast(PairResult[] pairs)
+        {
+            long start = System.Diagnostics.Stopwatch.GetTimestamp();
+            var forecast = OverlapPlanning.Forecast(images, Aligned(pairs), model, settings);
+            planningMs += System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+            return forecast;
+        }
+        var results = new PairResult[plan.Pairs.Count];
+        var first = Enumerable.Range(0, plan.Pairs.Count).Where(k => !plan.Conditional.Contains(k)).ToList();
+        Place(results, first, Estimate(run, good, [.. first.Select(k => plan.Pairs[k])], true, cancel));
+        OverlapForecast? forecast = null;
+        if (first.Count < plan.Pairs.Count)
+        {
+            // The conditional pairs stand in as not estimated while the others are aligned.
+            var conditional = plan.Conditional.Where(k => k >= 0 && k < plan.Pairs.Count).Order().ToList();
+            foreach (int k in conditional)
+            {
+                results[k] = NotEstimated(run, good, plan.Pairs[k], "not estimated yet");
+            }
+            forecast = Forecast(results);
+            var toEstimate = new List<int>();
+            foreach (int k in conditional)
+            {
+                var (a, b) = (plan.Pairs[k].A, plan.Pairs[k].B);
+                if (forecast?.Shared(a, b) is double f && f < OverlapPrediction.NotExpectedBelow)
+                {
+                    results[k] = NotEstimated(run, good, plan.Pairs[k], OverlapPlanning.NotExpectedPrefix + OverlapPlanning.Why(forecast, f) + "; not estimated");
+                }
+                else
+                {
+                    toEstimate.Add(k);
+                }
+            }
+            if (toEstimate.Count > 0)
+            {
+                Place(results, toEstimate, Estimate(run, good, [.. toEstimate.Select(k => plan.Pairs[k])], true, cancel));
+                forecast = null;
+            }
+        }
+        forecast ??= Forecast(results);
+        if (forecast is null)
+        {
+            return new PairStageResult(good, plan, results) { OverlapPlanningMs = planningMs };
+        }
+        var toAdd = OverlapPlanning.ToAdd(forecast, Aligned(results));
         if (toAdd.Count > 0)
         {
-            pairResults = [.. pairResults, .. Estimate(run, good, [.. toAdd.Select(p => new PlannedPair(p.A, p.B))], true, cancel)];
+            results = [.. results, .. Estimate(run, good, [.. toAdd.Select(p => new PlannedPair(p.A, p.B))], true, cancel)];
+            forecast = Forecast(results);
         }
-        var notExpected = OverlapPlanning.NotExpected(images, Aligned(pairResults), model, run.Profile.Alignment);
-        return [.. pairResults.Select((p, k) => notExpected.TryGetValue(k, out string? why)
-            ? p with { Analysis = p.Analysis with { Estimate = p.Analysis.Estimate with { Reasons = [OverlapPlanning.NotExpectedPrefix + why, .. p.Analysis.Estimate.Reasons] } } }
-            : p)];
+        if (forecast is not null)
+        {
+            var notExpected = OverlapPlanning.NotExpected(forecast, Aligned(results));
+            results = [.. results.Select((p, k) => notExpected.TryGetValue(k, out string? why)
+                ? p with { Analysis = p.Analysis with { Estimate = p.Analysis.Estimate with { Reasons = [OverlapPlanning.NotExpectedPrefix + why, .. p.Analysis.Estimate.Reasons] } } }
+                : p)];
+        }
+        return new PairStageResult(good, plan, results)
+        {
+            SetModel = forecast is { SawEveryLink: true } ? forecast.Result : null,
+            OverlapPlanningMs = planningMs,
+        };
     }
+
+    private static void Place(PairResult[] results, List<int> at, PairResult[] estimated)
+    {
+        for (int i = 0; i < at.Count; i++)
+        {
+            results[at[i]] = estimated[i];
+        }
+    }
+
+    private static PairResult NotEstimated(SetRun run, List<AnalysedImage> good, PlannedPair pair, string reason) =>
+        new(pair.A, pair.B, OverlapPlanning.NotEstimated(run.Profile.Estimation,
+            PairSeed.Derive(run.Profile.Estimation.Seed, good[pair.A].Key, good[pair.B].Key), reason), 0);
 
     private static List<AlignedPair> Aligned(PairResult[] pairResults) =>
         [.. pairResults.Select(p => new AlignedPair(p.A, p.B, p.Analysis.Estimate, p.Analysis.TiePoints))];

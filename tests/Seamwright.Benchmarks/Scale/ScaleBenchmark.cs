@@ -98,6 +98,10 @@ internal static class ScaleBenchmark
         {
             Console.WriteLine($"  stages: images {s.ImagesS:0.0} s ({s.Images} images, {s.ImagesFromCache} from the feature cache), "
                 + $"pairs {s.PairsS:0.0} s ({s.Pairs} pairs, {s.PairsEstimated} estimated), alignment + outputs {s.AlignAndOutputsS:0.0} s");
+            if (s.SetModelS is double align)
+            {
+                Console.WriteLine($"  set model and alignment {align:0.00} s (overlap planning {s.PlanningS:0.00} s) = {100 * align / s.TotalS:0.0} % of the set's {s.TotalS:0.0} s; preview and report {s.VisualsS:0.00} s");
+            }
         }
         foreach (string line in result.Output.Split('\n').Where(l => l.Contains("grid:", StringComparison.Ordinal) || l.Contains("pairs would", StringComparison.Ordinal)))
         {

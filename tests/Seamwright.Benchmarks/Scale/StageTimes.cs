@@ -11,6 +11,18 @@ namespace Seamwright.Benchmarks.Scale;
 /// </summary>
 internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAndOutputsS, int Images, int ImagesFromCache, int Pairs, int PairsEstimated)
 {
+    /// <summary>From the run's start to its outcome, s.</summary>
+    public double TotalS { get; init; }
+
+    /// <summary>Every set-model computation (overlap planning's forecasts and the final alignment), s; null when the log has no such line.</summary>
+    public double? SetModelS { get; init; }
+
+    /// <summary>Of <see cref="SetModelS"/>, overlap planning's forecasts, s.</summary>
+    public double? PlanningS { get; init; }
+
+    /// <summary>Preview and report, s.</summary>
+    public double? VisualsS { get; init; }
+
     public static StageTimes? FromLogs(string outputRoot, DateTimeOffset since)
     {
         string logs = Path.Combine(outputRoot, ".seamwright", "logs");
@@ -20,6 +32,7 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
         }
         DateTimeOffset? started = null, lastImage = null, planned = null, lastPair = null, finished = null;
         int images = 0, cached = 0, pairs = 0, estimated = -1;
+        double? setModelMs = null, planningMs = null, visualsMs = null;
         foreach (string file in Directory.GetFiles(logs, "*.log").Order(StringComparer.Ordinal))
         {
             foreach (string line in ReadShared(file))
@@ -58,6 +71,12 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
                 {
                     estimated = est.GetInt32();
                 }
+                else if (mt.Contains("set model and alignment {SetModelMs}", StringComparison.Ordinal))
+                {
+                    setModelMs = root.GetProperty("SetModelMs").GetDouble();
+                    planningMs = root.GetProperty("PlanningMs").GetDouble();
+                    visualsMs = root.GetProperty("VisualsMs").GetDouble();
+                }
                 else if (mt.Contains("{Outcome}", StringComparison.Ordinal) && mt.StartsWith("Set ", StringComparison.Ordinal))
                 {
                     finished = t;
@@ -72,7 +91,11 @@ internal sealed record StageTimes(double ImagesS, double PairsS, double AlignAnd
         var pairsStart = planned ?? imagesEnd;
         var pairsEnd = lastPair ?? pairsStart;
         return new StageTimes((pairsStart - started.Value).TotalSeconds, (pairsEnd - pairsStart).TotalSeconds,
-            (finished.Value - pairsEnd).TotalSeconds, images, cached, pairs, estimated);
+            (finished.Value - pairsEnd).TotalSeconds, images, cached, pairs, estimated)
+        {
+            TotalS = (finished.Value - started.Value).TotalSeconds,
+            SetModelS = setModelMs / 1000, PlanningS = planningMs / 1000, VisualsS = visualsMs / 1000,
+        };
     }
 
     private static IEnumerable<string> ReadShared(string path)

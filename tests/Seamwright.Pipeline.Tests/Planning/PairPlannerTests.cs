@@ -17,6 +17,9 @@ public class PairPlannerTests
         var plan = PairPlanner.Plan(new PairingSettings { Mode = PairingMode.Sequence, NeighbourSpan = 2 }, imgs);
         // natural order a1, a2, a3, a10
         Assert.Equal(new HashSet<string> { "a1.png|a2.png", "a1.png|a3.png", "a2.png|a3.png", "a10.png|a2.png", "a10.png|a3.png" }, Names(plan, imgs));
+        // The next-but-one pairs are conditional: estimated only where the neighbours' alignment allows an overlap.
+        Assert.Equal(new HashSet<string> { "a1.png|a3.png", "a10.png|a2.png" },
+            plan.Conditional.Select(k => string.Join("|", new[] { imgs[plan.Pairs[k].A].Key, imgs[plan.Pairs[k].B].Key }.Order(StringComparer.Ordinal))).ToHashSet());
     }
 
     [Fact]
@@ -57,6 +60,9 @@ public class PairPlannerTests
         var imgs = Images("r1c1.tif", "r1c2.tif", "r2c1.tif", "r2c2.tif");
         var plan = PairPlanner.Plan(new PairingSettings { Mode = PairingMode.Grid, GridDiagonals = true }, imgs);
         Assert.Equal(6, plan.Pairs.Count);
+        // The two diagonals are conditional, the four sides are not.
+        Assert.Equal(new HashSet<string> { "r1c1.tif|r2c2.tif", "r1c2.tif|r2c1.tif" },
+            plan.Conditional.Select(k => string.Join("|", new[] { imgs[plan.Pairs[k].A].Key, imgs[plan.Pairs[k].B].Key }.Order(StringComparer.Ordinal))).ToHashSet());
     }
 
     [Fact]
