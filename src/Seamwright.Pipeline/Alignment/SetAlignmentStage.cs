@@ -36,7 +36,7 @@ public static class SetAlignmentStage
 {
     public static AlignmentStageResult Run(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
         IReadOnlyList<string> paths, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings,
-        PreviewImageOpener? open = null, Report.ReportProvenance? provenance = null, SetModelResult? computed = null)
+        PreviewImageOpener? open = null, Report.ReportProvenance? provenance = null, SetModelResult? computed = null, SetCameras? setCameras = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(settings);
@@ -44,8 +44,9 @@ public static class SetAlignmentStage
         var sizes = images.Select(i => i.Size).ToArray();
         long start = System.Diagnostics.Stopwatch.GetTimestamp();
         // A set model computed from exactly these pairs under the same settings (overlap planning's last forecast) is the same result: not computed twice.
-        var setModel = computed ?? SetModelSelector.Align(sizes, SetCameras.Of(sizes), SetAlignmentInputs.Links(pairs), model, settings.SetModel,
-            settings.ToOptions(names), settings.ToRotationOptions());
+        setCameras ??= SetCameras.Of(sizes);
+        var setModel = computed ?? SetModelSelector.Align(sizes, setCameras.CameraOf, SetAlignmentInputs.Links(pairs), model, settings.SetModel,
+            settings.ToOptions(names), settings.ToRotationOptions(), setCameras.FocalPx);
         double alignMs = computed is null ? System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds : 0;
         var alignment = setModel.Alignment;
         var references = alignment.Images.Select(p => p.Reference is int r ? names[r] : null).ToArray();

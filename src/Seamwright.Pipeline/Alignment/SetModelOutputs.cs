@@ -66,13 +66,48 @@ public sealed record ManifestSetModel
     }
 }
 
-/// <summary>Cameras of a set: images of the same size share one (no make/model is read yet).</summary>
-public static class SetCameras
+/// <summary>
+/// Cameras of a set: images of the same size and the same EXIF make and model share one. Its
+/// focal length from EXIF (<see cref="ExifCamera"/>), the median over its images that give one,
+/// starts the rotation model (refined by the bundle); null where no image of it gives one.
+/// </summary>
+/// <param name="CameraOf">Per image, its camera.</param>
+/// <param name="FocalPx">Per camera, the focal length from EXIF in pixels, or null.</param>
+public sealed record SetCameras(int[] CameraOf, double?[] FocalPx)
 {
-    public static int[] Of(IReadOnlyList<ImageSize> sizes)
+    /// <summary>Cameras by size alone, no focal length known.</summary>
+    public static SetCameras Of(IReadOnlyList<ImageSize> sizes)
     {
         ArgumentNullException.ThrowIfNull(sizes);
-        var ids = new Dictionary<ImageSize, int>();
-        return [.. sizes.Select(s => ids.TryGetValue(s, out int id) ? id : ids[s] = ids.Count)];
+        return From(sizes, [.. sizes.Select(_ => ExifCamera.None)]);
+    }
+
+    public static SetCameras From(IReadOnlyList<ImageSize> sizes, IReadOnlyList<ExifCamera> exif)
+    {
+        ArgumentNullException.ThrowIfNull(sizes);
+        ArgumentNullException.ThrowIfNull(exif);
+        var ids = new Dictionary<(ImageSize, string), int>();
+        var cameraOf = new int[sizes.Count];
+        for (int i = 0; i < sizes.Count; i++)
+        {
+            var key = (sizes[i], exif[i].Camera);
+            cameraOf[i] = ids.TryGetValue(key, out int id) ? id : ids[key] = ids.Count;
+        }
+        var focal = new double?[ids.Count];
+        for (int c = 0; c < focal.Length; c++)
+        {
+            var given = Enumerable.Range(0, sizes.Count).Where(i => cameraOf[i] == c && exif[i].FocalPx is not null)
+                .Select(i => exif[i].FocalPx!.Value).Order().ToArray();
+            focal[c] = given.Length == 0 ? null : given.Length % 2 == 1 ? given[given.Length / 2] : 0.5 * (given[given.Length / 2 - 1] + given[given.Length / 2]);
+        }
+        return new SetCameras(cameraOf, focal);
+    }
+
+    /// <summary>Reads each image's EXIF (header only).</summary>
+    public static SetCameras Read(IReadOnlyList<string> paths, IReadOnlyList<ImageSize> sizes)
+    {
+        ArgumentNullException.ThrowIfNull(paths);
+        ArgumentNullException.ThrowIfNull(sizes);
+        return From(sizes, [.. paths.Select((p, i) => ExifCamera.Read(p, sizes[i]))]);
     }
 }

@@ -49,7 +49,8 @@ public static class OverlapPlanning
     }
 
     /// <summary>The set model of the pairs with enough tie points; null when no pair has enough to say where its images lie.</summary>
-    public static OverlapForecast? Forecast(IReadOnlyList<AlignedImage> images, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings)
+    public static OverlapForecast? Forecast(IReadOnlyList<AlignedImage> images, IReadOnlyList<AlignedPair> pairs, MotionModel model, AlignmentSettings settings,
+        SetCameras? cameras = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(pairs);
@@ -62,8 +63,9 @@ public static class OverlapPlanning
         }
         bool sawEvery = Enumerable.Range(0, links.Count).All(k => links[k].Status == all[k].Status);
         var sizes = images.Select(i => i.Size).ToArray();
-        var result = SetModelSelector.Align(sizes, SetCameras.Of(sizes), links, model, settings.SetModel,
-            settings.ToOptions([.. images.Select(i => i.Name)]), settings.ToRotationOptions());
+        cameras ??= SetCameras.Of(sizes);
+        var result = SetModelSelector.Align(sizes, cameras.CameraOf, links, model, settings.SetModel,
+            settings.ToOptions([.. images.Select(i => i.Name)]), settings.ToRotationOptions(), cameras.FocalPx);
         return new OverlapForecast(result, sizes, sawEvery);
     }
 

@@ -27,7 +27,7 @@ public sealed class AlignmentStep(ProcessingContext ctx)
                 long bytes = 4L * images[i].Size.Width * images[i].Size.Height;
                 using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
                 return files.Open(i, side);
-            }, provenance, pairs.SetModel);
+            }, provenance, pairs.SetModel, pairs.Cameras);
         ctx.Observer.AlignmentTimed(run.SetId, new AlignmentTimes(pairs.OverlapPlanningMs, result.AlignMs, result.VisualsMs));
         return result;
     }

@@ -22,6 +22,9 @@ public sealed record PairStageResult(IReadOnlyList<AnalysedImage> Images, PairPl
     /// </summary>
     public SetModelResult? SetModel { get; init; }
 
+    /// <summary>The set's cameras and their EXIF focal lengths (read once, used by overlap planning and the alignment); null: by size alone.</summary>
+    public SetCameras? Cameras { get; init; }
+
     /// <summary>Time spent forecasting overlaps (set models of the pairs so far), ms.</summary>
     public double OverlapPlanningMs { get; init; }
 
@@ -46,13 +49,14 @@ public sealed class PairStage(ProcessingContext ctx)
         var plan = PairPlanner.Plan(run.Profile.Pairing, good.Select(g => new PlanImage(g.Key, g.Analysis!.CaptureTime, g.Analysis.Coarse)).ToList());
         ctx.Observer.PairsPlanned(run.SetId, plan.Pairs.Count);
         var review = run.Profile.Pairing.Mode == PairingMode.Frames ? ctx.Review : null;
+        var cameras = SetCameras.Read([.. good.Select(g => g.File.FullPath)], [.. good.Select(g => g.Analysis!.Size)]);
         if (review is not null)
         {
             var reviewed = Estimate(run, good, plan.Pairs, report: false, cancel);
             Review(review, run, good, reviewed);
-            return new PairStageResult(good, plan, reviewed);
+            return new PairStageResult(good, plan, reviewed) { Cameras = cameras };
         }
-        return PlanByOverlap(run, good, plan, cancel);
+        return PlanByOverlap(run, good, plan, cameras, cancel) with { Cameras = cameras };
     }
 
     /// <summary>Estimates every planned pair (or takes it from the pair-result cache) through <see cref="PairRunner"/>.</summary>
@@ -72,7 +76,7 @@ public sealed class PairStage(ProcessingContext ctx)
     /// (they stop counting as failures). A forecast is recomputed only after new pairs were
     /// estimated; the last one is handed to the alignment stage when it saw every link.
     /// </summary>
-    private PairStageResult PlanByOverlap(SetRun run, List<AnalysedImage> good, PairPlan plan, CancellationToken cancel)
+    private PairStageResult PlanByOverlap(SetRun run, List<AnalysedImage> good, PairPlan plan, SetCameras cameras, CancellationToken cancel)
     {
         var images = good.Select(g => new AlignedImage(g.Key, g.Analysis!.Size)).ToList();
         var model = run.Profile.Estimation.MotionModel;
@@ -81,7 +85,7 @@ public sealed class PairStage(ProcessingContext ctx)
         OverlapForecast? Forecast(PairResult[] pairs)
         {
             long start = System.Diagnostics.Stopwatch.GetTimestamp();
-            var forecast = OverlapPlanning.Forecast(images, Aligned(pairs), model, settings);
+            var forecast = OverlapPlanning.Forecast(images, Aligned(pairs), model, settings, cameras);
             planningMs += System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds;
             return forecast;
         }
