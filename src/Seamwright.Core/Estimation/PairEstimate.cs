@@ -55,4 +55,7 @@ public sealed record PairEstimate
     public required string[] Terminations { get; init; }
 
     public required EstimateTimings TimingsMs { get; init; }
+
+    /// <summary>The features the estimate was made from (set by the pair flow; the estimator itself only sees correspondences).</summary>
+    public FeaturePath FeaturePath { get; init; } = FeaturePath.Corners;
 }

@@ -86,6 +86,7 @@ internal static class EstimateOutput
         Number(w, e.Threshold);
         w.WriteNumber("seed", e.Seed);
         w.WriteString("status", StatusName(e.Status));
+        w.WriteString("featurePath", e.FeaturePath.Word());
         w.WriteStartArray("reasons");
         foreach (string r in e.Reasons)
         {
@@ -111,7 +112,7 @@ internal static class EstimateOutput
         ArgumentNullException.ThrowIfNull(o);
         ArgumentNullException.ThrowIfNull(e);
         var c = CultureInfo.InvariantCulture;
-        o.WriteLine(string.Create(c, $"{ModelName(e.Model)} from {e.MatchCount} matches ({sizeA} -> {sizeB}, threshold {e.Threshold} px, seed {e.Seed}): {StatusName(e.Status)}"));
+        o.WriteLine(string.Create(c, $"{ModelName(e.Model)} from {e.MatchCount} matches ({sizeA} -> {sizeB}, threshold {e.Threshold} px, seed {e.Seed}, {e.FeaturePath.Word()}): {StatusName(e.Status)}"));
         o.WriteLine(string.Create(c, $"  consensus: sampling {e.Consensus.Sampling}, refined {e.Consensus.Refined}, final {e.Consensus.Final}, runner-up {e.Consensus.RunnerUp}"));
         if (e.Transform is { } h)
         {

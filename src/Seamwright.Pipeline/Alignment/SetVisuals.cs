@@ -75,7 +75,8 @@ public static class SetVisuals
             alignment.Reference == i, alignment.Images[i].Reason ?? ComponentNote(alignment, i, names))).ToList();
         var reportPairs = pairs.Select(p => new ReportPair(
             images[p.A].Name, images[p.B].Name, p.Estimate.Status.Word(), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
-            p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B))).ToList();
+            p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B),
+            p.Estimate.FeaturePath.Word())).ToList();
         var report = new SetReport(setName, runId, fingerprint, MotionFamily.Of(alignment.Model).Name, reportImages, reportPairs, preview,
             [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names)],
             SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names))

@@ -1,6 +1,7 @@
 using System.Text;
 using Seamwright.Core.Features;
 using Seamwright.Core.Geometry;
+using Seamwright.Core.Imaging;
 
 namespace Seamwright.Pipeline.Features;
 
@@ -9,13 +10,15 @@ namespace Seamwright.Pipeline.Features;
 /// magic "SWFC", format version (int32), pattern version and settings fingerprint (length-prefixed
 /// UTF-8), full and working size (4 x int32), working scale (float64), keypoint count, patch radius, then per keypoint
 /// X, Y, Scale, Angle, Response (float32) and Level (int32), then the descriptors (4 x uint64 each),
-/// then the patches, and last an FNV-1a 64-bit checksum of everything before it. A reader
+/// then the patches, then the compact gray copy (format 2: a flags byte, 1 = copy present, 2 = mask
+/// present; then width, height (int32), scale (float64), its pixels and the mask's pixels), and last
+/// an FNV-1a 64-bit checksum of everything before it. A reader
 /// rejects any other format version, a bad checksum or a truncated stream with
 /// <see cref="InvalidDataException"/>.
 /// </summary>
 public static class FeatureCacheCodec
 {
-    public const int FormatVersion = 1;
+    public const int FormatVersion = 2;
     private static readonly byte[] Magic = "SWFC"u8.ToArray();
     private const int MaxKeypoints = 10_000_000;
     private const int MaxPatchRadius = 512;
@@ -55,6 +58,7 @@ public static class FeatureCacheCodec
                 w.Write(d.W3);
             }
             w.Write(features.Patches);
+            WriteCompact(w, features);
         }
         ulong checksum = Fnv1a(buffer.GetBuffer().AsSpan(0, (int)buffer.Length));
         buffer.Write(BitConverter.IsLittleEndian ? BitConverter.GetBytes(checksum) : [.. BitConverter.GetBytes(checksum).Reverse()]);
@@ -113,17 +117,69 @@ public static class FeatureCacheCodec
             }
             int side = 2 * radius + 1;
             long patchBytes = (long)count * side * side;
-            if (patchBytes != buffer.Length - 8 - buffer.Position)
+            if (patchBytes > buffer.Length - 8 - buffer.Position)
             {
                 throw new InvalidDataException("Feature cache entry has the wrong length.");
             }
             var patches = r.ReadBytes((int)patchBytes);
-            return new ImageFeatures(full, working, scale, keypoints, descriptors, radius, patches, pattern, fingerprint);
+            var (compact, mask) = ReadCompact(r, full);
+            if (buffer.Position != buffer.Length - 8)
+            {
+                throw new InvalidDataException("Feature cache entry has the wrong length.");
+            }
+            return new ImageFeatures(full, working, scale, keypoints, descriptors, radius, patches, pattern, fingerprint, compact, mask);
         }
         catch (EndOfStreamException e)
         {
             throw new InvalidDataException("Feature cache entry is truncated.", e);
         }
+    }
+
+    private static void WriteCompact(BinaryWriter w, ImageFeatures features)
+    {
+        var c = features.Compact;
+        w.Write((byte)((c is null ? 0 : 1) | (features.CompactMask is null ? 0 : 2)));
+        if (c is null)
+        {
+            return;
+        }
+        w.Write(c.Image.Width);
+        w.Write(c.Image.Height);
+        w.Write(c.Scale);
+        w.Write(c.Image.Pixels);
+        if (features.CompactMask is { } mask)
+        {
+            w.Write(mask.Pixels);
+        }
+    }
+
+    private static (ScaledImage?, GrayImage?) ReadCompact(BinaryReader r, ImageSize full)
+    {
+        byte flags = r.ReadByte();
+        if (flags is not (0 or 1 or 3))
+        {
+            throw new InvalidDataException($"Feature cache entry has unknown compact-copy flags ({flags}).");
+        }
+        if (flags == 0)
+        {
+            return (null, null);
+        }
+        int width = r.ReadInt32(), height = r.ReadInt32();
+        double scale = r.ReadDouble();
+        if (width < 1 || height < 1 || width > full.Width || height > full.Height || !double.IsFinite(scale) || scale < 1)
+        {
+            throw new InvalidDataException($"Feature cache entry has an implausible compact copy ({width} x {height}, scale {scale}).");
+        }
+        int pixels = width * height;
+        var image = new GrayImage(width, height, ReadExactly(r, pixels));
+        var mask = (flags & 2) != 0 ? new GrayImage(width, height, ReadExactly(r, pixels)) : null;
+        return (new ScaledImage(image, scale), mask);
+    }
+
+    private static byte[] ReadExactly(BinaryReader r, int count)
+    {
+        var bytes = r.ReadBytes(count);
+        return bytes.Length == count ? bytes : throw new EndOfStreamException();
     }
 
     /// <summary>FNV-1a, 64-bit (Fowler, Noll, Vo); also the checksum of <c>Processing/ImageSummaryCodec</c>.</summary>

@@ -33,8 +33,12 @@ public static class ImageFeatureExtractor
             keypoints[i] = f;
             CopyPatch(full, ImageFeatures.PatchCentre(f.X), ImageFeatures.PatchCentre(f.Y), radius, patches.AsSpan(i * side * side, side * side));
         }
+        var compact = (long)working.Width * working.Height <= ImageFeatures.CompactPixels
+            ? scaled
+            : AreaResampler.ToPixelBudget(full, ImageFeatures.CompactPixels);
         return new ImageFeatures(new ImageSize(full.Width, full.Height), new ImageSize(working.Width, working.Height), scale,
-            keypoints, set.Descriptors, radius, patches, DescriptorPattern.Version, settings.Fingerprint);
+            keypoints, set.Descriptors, radius, patches, DescriptorPattern.Version, settings.Fingerprint, compact,
+            mask?.Rasterize(full.Width, full.Height, compact.Image.Width, compact.Image.Height));
     }
 
     private static void CopyPatch(GrayImage image, int cx, int cy, int r, Span<byte> dst)

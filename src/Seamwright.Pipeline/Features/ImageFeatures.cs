@@ -1,5 +1,7 @@
 using Seamwright.Core.Features;
+using Seamwright.Core.Features.ScaleSpace;
 using Seamwright.Core.Geometry;
+using Seamwright.Core.Imaging;
 
 namespace Seamwright.Pipeline.Features;
 
@@ -9,12 +11,14 @@ namespace Seamwright.Pipeline.Features;
 /// the image as displayed (pixel centres at integers); <see cref="Keypoint.Scale"/> is full-resolution
 /// pixels per pixel of the pyramid level the corner came from. Each keypoint carries a
 /// full-resolution patch (side 2 * PatchRadius + 1) centred on its rounded position, for the
-/// re-localisation of tie points.
+/// re-localisation of tie points. <see cref="Compact"/> is a gray copy of at most
+/// <see cref="CompactPixels"/> pixels for the scale-space path (computed only for pairs that need it,
+/// then kept with these features, <see cref="ScaleSpace"/>).
 /// </summary>
 public sealed class ImageFeatures
 {
     public ImageFeatures(ImageSize fullSize, ImageSize workingSize, double workingScale, Keypoint[] keypoints, Descriptor256[] descriptors,
-        int patchRadius, byte[] patches, string patternVersion, string settingsFingerprint)
+        int patchRadius, byte[] patches, string patternVersion, string settingsFingerprint, ScaledImage? compact = null, GrayImage? compactMask = null)
     {
         ArgumentNullException.ThrowIfNull(keypoints);
         ArgumentNullException.ThrowIfNull(descriptors);
@@ -39,7 +43,20 @@ public sealed class ImageFeatures
         Patches = patches;
         PatternVersion = patternVersion;
         SettingsFingerprint = settingsFingerprint;
+        if (compactMask is not null && (compact is null || compactMask.Width != compact.Image.Width || compactMask.Height != compact.Image.Height))
+        {
+            throw new ArgumentException("The compact mask must have the compact copy's size.");
+        }
+        Compact = compact;
+        CompactMask = compactMask;
     }
+
+    /// <summary>
+    /// Pixels of the compact gray copy kept for the scale-space path. Judgement: at about a
+    /// megapixel the detector works on the copy as it is (it doubles only images of at most half a
+    /// megapixel, ScaleSpaceOptions.PixelBudget), which keeps its cost near half a second per image.
+    /// </summary>
+    public const long CompactPixels = 1_000_000;
 
     /// <summary>Size of the image as displayed (after the EXIF orientation), full resolution.</summary>
     public ImageSize FullSize { get; }
@@ -69,6 +86,59 @@ public sealed class ImageFeatures
     public string SettingsFingerprint { get; }
 
     public int Count => Keypoints.Length;
+
+    /// <summary>Gray copy of the image (area-averaged to at most <see cref="CompactPixels"/>); Scale is full-resolution pixels per copy pixel. Null for features made without one.</summary>
+    public ScaledImage? Compact { get; }
+
+    /// <summary>The feature mask at the compact copy's size (255 = use, 0 = excluded); null when nothing is excluded.</summary>
+    public GrayImage? CompactMask { get; }
+
+    private readonly Lock scaleSpaceGate = new();
+    private (ScaleSpaceOptions Options, ScaleSpaceFeatureSet Set)? scaleSpace;
+
+    /// <summary>
+    /// The scale-space features of <see cref="Compact"/> (in its pixels), computed on first use and
+    /// kept while these features are held; null without a compact copy. The same for every caller
+    /// (the detector is deterministic), whichever thread computes it.
+    /// </summary>
+    public ScaleSpaceFeatureSet? ScaleSpace(ScaleSpaceOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        if (Compact is null)
+        {
+            return null;
+        }
+        lock (scaleSpaceGate)
+        {
+            if (scaleSpace is not { } held || held.Options != options)
+            {
+                scaleSpace = (options, Unmasked(ScaleSpaceDetector.Detect(Compact.Image, options)));
+            }
+            return scaleSpace.Value.Set;
+        }
+    }
+
+    /// <summary>The keypoints outside the excluded regions (all of them without a mask), in their order.</summary>
+    private ScaleSpaceFeatureSet Unmasked(ScaleSpaceFeatureSet set)
+    {
+        if (CompactMask is not { } mask)
+        {
+            return set;
+        }
+        var keep = Enumerable.Range(0, set.Count).Where(i =>
+        {
+            var k = set.Keypoints[i];
+            int x = Math.Clamp((int)MathF.Round(k.X), 0, mask.Width - 1), y = Math.Clamp((int)MathF.Round(k.Y), 0, mask.Height - 1);
+            return mask[x, y] != 0;
+        }).ToArray();
+        int n = GradientHistogramDescriptor.Length;
+        var descriptors = new byte[keep.Length * n];
+        for (int j = 0; j < keep.Length; j++)
+        {
+            set.Descriptor(keep[j]).CopyTo(descriptors.AsSpan(j * n, n));
+        }
+        return new ScaleSpaceFeatureSet([.. keep.Select(i => set.Keypoints[i])], descriptors);
+    }
 
     public static int PatchCentre(float coordinate) => (int)MathF.Round(coordinate);
 

@@ -24,6 +24,8 @@ public sealed record SidecarLink
     public required string Status { get; init; }
     public required int InlierCount { get; init; }
     public required int MatchCount { get; init; }
+    /// <summary>The features the link's estimate came from: "corners" or "scale-space" (the second look).</summary>
+    public required string FeaturePath { get; init; }
     /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
     public required double? CornerSigmaPx { get; init; }
     public required double? RmsResidualPx { get; init; }
@@ -135,6 +137,8 @@ public sealed record ConfidenceRecord
     public required double[][]? Homography { get; init; }
     /// <summary>Null for kind "file".</summary>
     public required string? MotionModel { get; init; }
+    /// <summary>"corners" or "scale-space" (the second look decided); null for kind "file".</summary>
+    public required string? FeaturePath { get; init; }
     /// <summary>Null when it cannot be computed (for example no model or too few inliers).</summary>
     public required double? CornerSigmaPx { get; init; }
     public required double? RmsResidualPx { get; init; }

@@ -11,11 +11,59 @@ namespace Seamwright.Pipeline.Pairs;
 /// <summary>
 /// One pair from features to decision: match at working resolution, estimate in full-resolution
 /// coordinates, re-localise the tie points at full resolution from the stored patches, polish
-/// again at the requested threshold, decide. Deterministic for the same features and settings.
+/// again at the requested threshold, decide; a pair this corner path leaves weak, rejected or with
+/// few inliers then gets a second look with scale-space features (<see cref="ScaleSpaceLook"/>), and the
+/// better of the two decides (<see cref="PairEstimate.FeaturePath"/> says which). Deterministic for the
+/// same features and settings.
 /// </summary>
 public static class PairProcessor
 {
     public static PairOutcome Process(ImageFeatures a, ImageFeatures b, PairSettings settings)
+    {
+        var corners = Corners(a, b, settings);
+        if (settings.ScaleSpace is not { } look || !NeedsSecondLook(corners, look) || RepeatedPattern(a, b, settings) is not null)
+        {
+            return corners;
+        }
+        var (second, summary) = ScaleSpacePath.Process(a, b, settings, look);
+        if (second is not null && Better(second.Estimate, corners.Estimate))
+        {
+            var e = second.Estimate;
+            string first = Inv($"corner path: {corners.Estimate.Status.ToString().ToLowerInvariant()} with {corners.Estimate.Consensus.Final} inliers of {corners.MatchCount} matches");
+            return second with
+            {
+                Estimate = e with { Terminations = [summary, first, .. e.Terminations] },
+                TimingsMs = second.TimingsMs with { Total = corners.TimingsMs.Total + second.TimingsMs.Total },
+            };
+        }
+        return corners with
+        {
+            Estimate = corners.Estimate with { Terminations = [.. corners.Estimate.Terminations, summary + " (the corner result stands)"] },
+            TimingsMs = corners.TimingsMs with { Total = corners.TimingsMs.Total + (second?.TimingsMs.Total ?? 0) },
+        };
+    }
+
+    /// <summary>A result the corner path could not decide well: not accepted, or accepted on few inliers. Too little texture is final.</summary>
+    private static bool NeedsSecondLook(PairOutcome corners, ScaleSpaceLook look) =>
+        corners.Estimate is var e && !e.Terminations.Contains(NoTexture)
+        && (e.Status != PairStatus.Accepted || e.Consensus.Final < look.FewInliers);
+
+    /// <summary>
+    /// The scale-space result replaces a rejected corner result when it is not rejected itself, and
+    /// any other corner result when its status is at least as good and its final consensus larger: a
+    /// corner result made weak by a strong second placement stays weak unless more evidence says otherwise.
+    /// </summary>
+    private static bool Better(PairEstimate second, PairEstimate first) =>
+        first.Status == PairStatus.Rejected
+            ? second.Status != PairStatus.Rejected
+            : Rank(second.Status) >= Rank(first.Status) && second.Consensus.Final > first.Consensus.Final;
+
+    private static int Rank(PairStatus s) => s switch { PairStatus.Accepted => 2, PairStatus.Weak => 1, _ => 0 };
+
+    private const string NoTexture = "not run: too little texture";
+
+    /// <summary>The corner path: binary-descriptor matching, estimate, re-localisation and polish.</summary>
+    private static PairOutcome Corners(ImageFeatures a, ImageFeatures b, PairSettings settings)
     {
         ArgumentNullException.ThrowIfNull(a);
         ArgumentNullException.ThrowIfNull(b);
@@ -32,7 +80,7 @@ public static class PairProcessor
         string? texture = TextureProblem(a, "A", settings) ?? TextureProblem(b, "B", settings);
         if (texture is not null)
         {
-            return Rejected(a, b, settings, 0, 0, [texture], "not run: too little texture", start, 0);
+            return Rejected(a, b, settings, 0, 0, [texture], NoTexture, start, 0);
         }
 
         var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, settings.Matching);

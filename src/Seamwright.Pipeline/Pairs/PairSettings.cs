@@ -34,9 +34,13 @@ public sealed record PairSettings
     /// <summary>Smallest normalised cross-correlation of a re-localised tie point.</summary>
     public double MinCorrelation { get; init; } = 0.8;
 
+    /// <summary>The scale-space second look for pairs the corner path cannot decide (null: corners only).</summary>
+    public ScaleSpaceLook? ScaleSpace { get; init; } = new();
+
     public void Validate()
     {
         ArgumentNullException.ThrowIfNull(Estimation);
+        ScaleSpace?.Validate();
         ArgumentNullException.ThrowIfNull(Matching);
         Estimation.Validate();
         if (MinFeatures < 1 || MinMatches < 1 || MinCorrelation is < -1 or > 1 || Matching.MaxRatio is <= 0 or > 1)

@@ -7,7 +7,7 @@ using Seamwright.Pipeline.Analysis;
 namespace Seamwright.Pipeline.Processing;
 
 /// <summary>
-/// Binary encoding of one pair's outcome for the pair-result cache (format 1): magic
+/// Binary encoding of one pair's outcome for the pair-result cache (format 2): magic
 /// <c>SWPR</c>, int32 format version, the estimate field by field (doubles as their exact IEEE
 /// bits, strings as length-prefixed UTF-8), the tie points (four doubles each), then an FNV-1a 64
 /// checksum of everything before it; little-endian. Lossless, so a reused result gives the same
@@ -16,7 +16,7 @@ namespace Seamwright.Pipeline.Processing;
 /// </summary>
 public static class PairResultCodec
 {
-    public const int FormatVersion = 1;
+    public const int FormatVersion = 2;
     private static readonly byte[] Magic = "SWPR"u8.ToArray();
 
     public static byte[] Encode(PairAnalysis pair)
@@ -57,6 +57,7 @@ public static class PairResultCodec
             w.Write(e.TimingsMs.Refinement);
             w.Write(e.TimingsMs.Polish);
             w.Write(e.TimingsMs.Total);
+            w.Write((int)e.FeaturePath);
             w.Write(pair.TiePoints.Count);
             foreach (var t in pair.TiePoints)
             {
@@ -114,6 +115,11 @@ public static class PairResultCodec
             int iterations = r.ReadInt32(), lps = r.ReadInt32();
             string[] terminations = ReadStrings(r, data.Length);
             var timings = new EstimateTimings(r.ReadDouble(), r.ReadDouble(), r.ReadDouble(), r.ReadDouble());
+            int path = r.ReadInt32();
+            if (!Enum.IsDefined((FeaturePath)path))
+            {
+                throw new InvalidDataException("damaged pair-result cache entry (feature path)");
+            }
             var ties = new Correspondence[Count(r, data.Length / 32)];
             for (int i = 0; i < ties.Length; i++)
             {
@@ -140,6 +146,7 @@ public static class PairResultCodec
                 LpCount = lps,
                 Terminations = terminations,
                 TimingsMs = timings,
+                FeaturePath = (FeaturePath)path,
             };
             return new PairAnalysis(estimate, ties);
         }

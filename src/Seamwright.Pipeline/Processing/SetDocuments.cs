@@ -143,6 +143,7 @@ public static class SetDocuments
             Status = est.Status.Word(),
             InlierCount = est.InlierIndices.Length,
             MatchCount = est.MatchCount,
+            FeaturePath = est.FeaturePath.Word(),
             CornerSigmaPx = OutputNumbers.FiniteOrNull(est.CornerSigmaPx),
             RmsResidualPx = OutputNumbers.FiniteOrNull(est.RmsResidualPx),
             Seed = est.Seed.ToString(System.Globalization.CultureInfo.InvariantCulture),

@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using System.Globalization;
 using System.Net;
 using System.Text;
@@ -125,6 +126,10 @@ public static class ReportHtml
             sb.Append("<details><summary><span class=\"chip st-").Append(E(p.Status)).Append("\">").Append(E(p.Status)).Append("</span> ")
               .Append(E(p.ImageA)).Append(" – ").Append(E(p.ImageB)).Append("</summary><ul>");
             sb.Append(F($"<li>{p.Inliers} inliers of {p.Matches} matches; RMS {p.RmsPx:0.###} px; corner σ {p.CornerSigmaPx:0.###} px</li>"));
+            if (p.FeaturePath != FeaturePathWords.Corners)
+            {
+                sb.Append("<li>decided by the ").Append(E(p.FeaturePath)).Append(" features (the corner features left this pair undecided)</li>");
+            }
             foreach (var r in p.Reasons)
             {
                 sb.Append("<li>").Append(E(r)).Append("</li>");

@@ -1,3 +1,5 @@
+using Seamwright.Core.Estimation;
+
 namespace Seamwright.Pipeline.Report;
 
 /// <summary>One image of the report.</summary>
@@ -20,8 +22,9 @@ public sealed record ReportImage(string Name, int Width, int Height, byte[]? Thu
 /// <param name="CornerSigmaPx">Largest corner standard deviation in pixels.</param>
 /// <param name="Reasons">The decision's reasons in words.</param>
 /// <param name="AlignmentNote">Why the set alignment left the link out; null when it was used or never usable.</param>
+/// <param name="FeaturePath">The features the estimate came from ("corners" or "scale-space").</param>
 public sealed record ReportPair(string ImageA, string ImageB, string Status, int Inliers, int Matches, double RmsPx, double CornerSigmaPx,
-    IReadOnlyList<string> Reasons, string? AlignmentNote);
+    IReadOnlyList<string> Reasons, string? AlignmentNote, string FeaturePath = FeaturePathWords.Corners);
 
 /// <summary>A labelled figure of the summary (already formatted).</summary>
 public sealed record ReportFact(string Label, string Value);

@@ -94,6 +94,8 @@ public sealed class EstimationSettings
     public double RatioTest { get; set; } = 0.8;
     /// <summary>Run the deterministic consensus refinement after sampling.</summary>
     public bool RefineConsensus { get; set; } = true;
+    /// <summary>Give pairs the corners leave weak, rejected or with few inliers a second look with scale-space features.</summary>
+    public bool ScaleSpaceLook { get; set; } = true;
     /// <summary>Confidence of the sampling termination bound (the standard RANSAC stopping rule).</summary>
     public double Confidence { get; set; } = 0.99;
     /// <summary>Most sampling iterations per pair (a work cap, never a time cap).</summary>

@@ -21,7 +21,7 @@ public sealed class LedgerRunRetentionTests : IDisposable
     private static ConfidenceRecord Record(long run, string set) => new()
     {
         Kind = "pair", Run = run, Time = "2026-12-01T00:00:00.000Z", Set = set, ImageA = "a.png", ImageB = "b.png", Status = "accepted", InlierCount = 40, MatchCount = 50,
-        Homography = [[1, 0, 3], [0, 1, 0], [0, 0, 1]], MotionModel = "homography", CornerSigmaPx = 0.5, RmsResidualPx = 0.4,
+        Homography = [[1, 0, 3], [0, 1, 0], [0, 0, 1]], MotionModel = "homography", FeaturePath = "corners", CornerSigmaPx = 0.5, RmsResidualPx = 0.4,
         Consensus = null, Seed = "1", Reasons = [], TimingsMs = new ConfidenceTimings(0, 0, 0, 0, 0), SettingsFingerprint = "fp",
     };
 

@@ -25,6 +25,50 @@ public class ImageFeaturesTests
         Assert.Equal(f.Patches, back.Patches);
         Assert.Equal(f.PatternVersion, back.PatternVersion);
         Assert.Equal(f.SettingsFingerprint, back.SettingsFingerprint);
+        Assert.NotNull(back.Compact);
+        Assert.Equal(f.Compact!.Scale, back.Compact!.Scale);
+        Assert.Equal(f.Compact.Image.Pixels, back.Compact.Image.Pixels);
+        Assert.Null(back.CompactMask);
+    }
+
+    [Fact]
+    public void WriteRead_MaskedFeatures_CompactCopyAndMaskSurvive()
+    {
+        var f = ImageFeatureExtractor.Extract(Scene.Value, FeatureMask.ParseRectangles("100 50 300 200\n"), FeatureSettings.Default);
+        using var stream = new MemoryStream();
+        FeatureCacheCodec.Write(stream, f);
+        stream.Position = 0;
+        var back = FeatureCacheCodec.Read(stream);
+        Assert.NotNull(back.CompactMask);
+        Assert.Equal(f.CompactMask!.Pixels, back.CompactMask!.Pixels);
+        Assert.Equal(f.Compact!.Image.Pixels, back.Compact!.Image.Pixels);
+    }
+
+    [Fact]
+    public void Extract_LargeImage_CompactCopyWithinItsBudgetAndScaleSpaceInCopyPixels()
+    {
+        var full = SceneRenderer.Render(new ProceduralScene(3, SceneStyle.EstateMap), 2400, 1800, Transform2D.Scaling(0.25, 0.25), 1);
+        var f = ImageFeatureExtractor.Extract(full, null, FeatureSettings.Default);
+        var c = f.Compact!;
+        Assert.True((long)c.Image.Width * c.Image.Height <= ImageFeatures.CompactPixels, $"{c.Image.Width} x {c.Image.Height}");
+        Assert.True(c.Scale > 1.5, $"scale {c.Scale}");
+        var set = f.ScaleSpace(new Seamwright.Core.Features.ScaleSpace.ScaleSpaceOptions())!;
+        Assert.True(set.Count > 100, $"{set.Count} scale-space features");
+        Assert.All(set.Keypoints, k => Assert.True(k.X >= -0.5 && k.X < c.Image.Width && k.Y >= -0.5 && k.Y < c.Image.Height));
+        Assert.Same(set, f.ScaleSpace(new Seamwright.Core.Features.ScaleSpace.ScaleSpaceOptions()));
+    }
+
+    [Fact]
+    public void ScaleSpace_MaskedRectangle_NoKeypointInside()
+    {
+        var options = new Seamwright.Core.Features.ScaleSpace.ScaleSpaceOptions();
+        var masked = ImageFeatureExtractor.Extract(Scene.Value, FeatureMask.ParseRectangles("100 50 300 200\n"), FeatureSettings.Default);
+        var unmasked = ImageFeatureExtractor.Extract(Scene.Value, null, FeatureSettings.Default);
+        double s = masked.Compact!.Scale;
+        bool Inside(float x, float y) => Seamwright.Core.Imaging.ScaledImage.ToSource(x, s) is var fx && Seamwright.Core.Imaging.ScaledImage.ToSource(y, s) is var fy
+            && fx >= 100.5 && fx < 399.5 && fy >= 50.5 && fy < 249.5;
+        Assert.True(unmasked.ScaleSpace(options)!.Keypoints.Count(k => Inside(k.X, k.Y)) > 10);
+        Assert.DoesNotContain(masked.ScaleSpace(options)!.Keypoints, k => Inside(k.X, k.Y));
     }
 
     [Fact]

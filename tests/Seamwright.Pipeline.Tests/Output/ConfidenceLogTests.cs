@@ -8,7 +8,7 @@ public class ConfidenceLogTests
     private static ConfidenceRecord Record(long run, string a) => new()
     {
         Kind = "pair", Run = run, Time = "2026-12-01T00:00:00.000Z", Set = "s", ImageA = a, ImageB = "b", Status = "accepted", InlierCount = 10, MatchCount = 12,
-        Homography = [[1, 0, 0], [0, 1, 0], [0, 0, 1]], MotionModel = "homography", CornerSigmaPx = 0.1, RmsResidualPx = 0.5,
+        Homography = [[1, 0, 0], [0, 1, 0], [0, 0, 1]], MotionModel = "homography", FeaturePath = "corners", CornerSigmaPx = 0.1, RmsResidualPx = 0.5,
         Consensus = new ConfidenceConsensus(9, 10, 10, 0, 3, 100), Seed = "7", Reasons = [], TimingsMs = new ConfidenceTimings(1, 2, 3, 6, 7),
         SettingsFingerprint = "abc",
     };

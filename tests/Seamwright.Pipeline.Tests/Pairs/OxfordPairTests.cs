@@ -36,7 +36,7 @@ public class OxfordPairTests(ITestOutputHelper output)
             var outcome = PairProcessor.Process(a.F, b.F, PairSettings.Default);
             var e = outcome.Estimate;
             errors[i] = e.Transform is { } h && e.Status != PairStatus.Rejected ? p.GridError(h, a.W, a.H, b.W, b.H) : double.PositiveInfinity;
-            lines[i] = $"{p.Name,-10} err {errors[i],8:F2} px  {e.Status,-8} matches {outcome.MatchCount} inliers {e.Consensus.Final}";
+            lines[i] = $"{p.Name,-10} err {errors[i],8:F2} px  {e.Status,-8} {e.FeaturePath.Word(),-11} matches {outcome.MatchCount} inliers {e.Consensus.Final}";
         });
         foreach (var l in lines)
         {

@@ -1,0 +1,85 @@
+using System.Diagnostics;
+using System.Globalization;
+using Seamwright.Core.Estimation;
+using Seamwright.Core.Features.ScaleSpace;
+using Seamwright.Core.Geometry;
+using Seamwright.Core.Imaging;
+using Seamwright.Core.Matching;
+using Seamwright.Pipeline.Features;
+
+namespace Seamwright.Pipeline.Pairs;
+
+/// <summary>
+/// The scale-space path of one pair: scale-space features of both compact copies (computed once per
+/// image and kept with its features), histogram matching, the same estimator as the corner path in
+/// full-resolution coordinates. There are no full-resolution patches for these points, so tie points
+/// keep the compact copy's precision: the final threshold is at least one compact pixel.
+/// </summary>
+internal static class ScaleSpacePath
+{
+    /// <summary>
+    /// The outcome from scale-space features (null when either image has no compact copy or there are
+    /// too few matches to estimate) and a line saying what the path found.
+    /// </summary>
+    public static (PairOutcome? Outcome, string Summary) Process(ImageFeatures a, ImageFeatures b, PairSettings settings, ScaleSpaceLook look)
+    {
+        long start = Stopwatch.GetTimestamp();
+        var fa = a.ScaleSpace(look.Detector);
+        var fb = b.ScaleSpace(look.Detector);
+        if (fa is null || fb is null)
+        {
+            return (null, "scale-space path: not available (features cached without a compact copy)");
+        }
+        var result = HistogramMatcher.Match(fa, fb, settings.Matching);
+        double matchingMs = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+        var options = settings.Estimation;
+        var matches = Points(fa, a.Compact!, fb, b.Compact!, result.Matches);
+        double compactScale = Math.Max(a.Compact!.Scale, b.Compact!.Scale);
+        double coarse = Math.Max(options.Threshold, 1.5 * compactScale);
+        double threshold = Math.Max(options.Threshold, compactScale);
+        string counts = Inv($"scale-space path: {fa.Count} and {fb.Count} features, {matches.Length} matches");
+        if (matches.Length < settings.MinMatches)
+        {
+            return (null, counts + Inv($" (at least {settings.MinMatches} needed)"));
+        }
+        var estimate = PairEstimator.Estimate(matches, a.FullSize, b.FullSize, options with { Threshold = coarse });
+        var ties = matches;
+        var final = estimate;
+        if (estimate.Transform is not null)
+        {
+            ties = DistinctTies.Distinct(matches, Math.Max(1.0, compactScale));
+            final = PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options with { Threshold = threshold });
+        }
+        final = final with { FeaturePath = FeaturePath.ScaleSpace };
+        var tiePoints = final.InlierIndices.Select(i => ties[i]).ToArray();
+        var t = final.TimingsMs;
+        var outcome = new PairOutcome
+        {
+            Estimate = final,
+            TiePoints = tiePoints,
+            FeatureCountA = fa.Count,
+            FeatureCountB = fb.Count,
+            MatchCount = matches.Length,
+            AmbiguousCount = result.AmbiguousCount,
+            RelocalizedCount = 0,
+            PatternVersion = a.PatternVersion,
+            TimingsMs = new PairTimings(matchingMs, t.Sampling, t.Refinement, 0, t.Polish, Stopwatch.GetElapsedTime(start).TotalMilliseconds),
+        };
+        return (outcome, Inv($"{counts}, {final.Status.ToString().ToLowerInvariant()} with {final.Consensus.Final} inliers"));
+    }
+
+    /// <summary>Matches as full-resolution correspondences (compact pixel x is full-resolution (x + 0.5) * scale - 0.5).</summary>
+    private static Correspondence[] Points(ScaleSpaceFeatureSet fa, ScaledImage ca, ScaleSpaceFeatureSet fb, ScaledImage cb, FeatureMatch[] pairs)
+    {
+        var points = new Correspondence[pairs.Length];
+        for (int i = 0; i < points.Length; i++)
+        {
+            var ka = fa.Keypoints[pairs[i].IndexA];
+            var kb = fb.Keypoints[pairs[i].IndexB];
+            points[i] = new Correspondence(ca.ToSource(ka.X), ca.ToSource(ka.Y), cb.ToSource(kb.X), cb.ToSource(kb.Y));
+        }
+        return points;
+    }
+
+    private static string Inv(FormattableString s) => s.ToString(CultureInfo.InvariantCulture);
+}
