@@ -26,6 +26,10 @@ internal sealed class ServiceObserver(ILogger log, Operations.OperationsMetrics?
         log.Debug("Set {Set}: pair {A} / {B}: {Status} ({Reasons})", setId, imageA, imageB, status, string.Join("; ", reasons));
     }
 
+    public void SecondLooks(string setId, int estimated, int reused, int decidedByScaleSpace) =>
+        log.Information("Set {Set}: second look with scale-space features for {Pairs} undecided pairs ({Reused} reused); {Decided} decided by them",
+            setId, estimated + reused, reused, decidedByScaleSpace);
+
     public void SetFinished(SetOutcome outcome)
     {
         ArgumentNullException.ThrowIfNull(outcome);

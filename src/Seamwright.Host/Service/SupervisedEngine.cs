@@ -49,4 +49,6 @@ internal sealed class SupervisedEngine(IPairEngine inner, DecodeSupervisor super
 
     public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed) =>
         inner.EstimatePair(a, b, settings, seed);
+
+    public bool HasSecondLook => inner.HasSecondLook;
 }

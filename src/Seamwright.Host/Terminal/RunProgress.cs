@@ -101,6 +101,10 @@ internal sealed class RunProgress(ILogger log, bool interactive) : IProcessingOb
             setId, Math.Round(times.SetModelMs), Math.Round(times.OverlapPlanningMs), Math.Round(times.AlignMs), Math.Round(times.VisualsMs));
     }
 
+    public void SecondLooks(string setId, int estimated, int reused, int decidedByScaleSpace) =>
+        log.Information("Set {Set}: second look with scale-space features for {Pairs} undecided pairs ({Reused} reused from the pair cache); {Decided} decided by them",
+            setId, estimated + reused, reused, decidedByScaleSpace);
+
     public void SetFinished(SetOutcome outcome)
     {
         ArgumentNullException.ThrowIfNull(outcome);

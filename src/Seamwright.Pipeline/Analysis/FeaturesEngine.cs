@@ -112,6 +112,8 @@ public sealed class FeaturesEngine : IPairEngine
         };
     }
 
+    public bool HasSecondLook => true;
+
     public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, Settings.EstimationSettings settings, ulong seed)
     {
         ArgumentNullException.ThrowIfNull(a);

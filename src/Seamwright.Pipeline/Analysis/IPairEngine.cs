@@ -31,4 +31,11 @@ public interface IPairEngine
     ImageAnalysis Decode(ReadOnlySpan<byte> data);
 
     PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed);
+
+    /// <summary>
+    /// Whether <see cref="EstimatePair"/> honours <see cref="EstimationSettings.ScaleSpaceLook"/> (a
+    /// second look with scale-space features); the pairs stage runs its second pass only then.
+    /// Decorators forward it.
+    /// </summary>
+    bool HasSecondLook => false;
 }

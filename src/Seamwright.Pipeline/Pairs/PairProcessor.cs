@@ -21,7 +21,7 @@ public static class PairProcessor
     public static PairOutcome Process(ImageFeatures a, ImageFeatures b, PairSettings settings)
     {
         var corners = Corners(a, b, settings);
-        if (settings.ScaleSpace is not { } look || !NeedsSecondLook(corners, look) || RepeatedPattern(a, b, settings) is not null)
+        if (settings.ScaleSpace is not { } look || !look.Wants(corners.Estimate) || RepeatedPattern(a, b, settings) is not null)
         {
             return corners;
         }
@@ -43,11 +43,6 @@ public static class PairProcessor
         };
     }
 
-    /// <summary>A result the corner path could not decide well: not accepted, or accepted on few inliers. Too little texture is final.</summary>
-    private static bool NeedsSecondLook(PairOutcome corners, ScaleSpaceLook look) =>
-        corners.Estimate is var e && !e.Terminations.Contains(NoTexture)
-        && (e.Status != PairStatus.Accepted || e.Consensus.Final < look.FewInliers);
-
     /// <summary>
     /// The scale-space result replaces a rejected corner result when it is not rejected itself, and
     /// any other corner result when its status is at least as good and its final consensus larger: a
@@ -60,7 +55,11 @@ public static class PairProcessor
 
     private static int Rank(PairStatus s) => s switch { PairStatus.Accepted => 2, PairStatus.Weak => 1, _ => 0 };
 
-    private const string NoTexture = "not run: too little texture";
+    /// <summary>The termination of a pair not estimated for too little texture.</summary>
+    public const string NoTexture = "not run: too little texture";
+
+    /// <summary>How the repeated-pattern reason begins.</summary>
+    public const string RepeatedPatternPrefix = "repeated pattern:";
 
     /// <summary>The corner path: binary-descriptor matching, estimate, re-localisation and polish.</summary>
     private static PairOutcome Corners(ImageFeatures a, ImageFeatures b, PairSettings settings)
@@ -218,7 +217,7 @@ public static class PairProcessor
         double rb = SelfSimilarity.RepeatedFraction(b.Descriptors, b.Keypoints);
         double worst = Math.Max(ra, rb);
         return worst >= settings.RepeatedPatternFraction
-            ? Inv($"repeated pattern: {100 * worst:0}% of the sampled corners of image {(ra >= rb ? "A" : "B")} have a near-identical twin elsewhere in the same image, so matches are ambiguous")
+            ? RepeatedPatternPrefix + Inv($" {100 * worst:0}% of the sampled corners of image {(ra >= rb ? "A" : "B")} have a near-identical twin elsewhere in the same image, so matches are ambiguous")
             : null;
     }
 

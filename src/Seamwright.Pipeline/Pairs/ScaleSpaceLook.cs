@@ -1,3 +1,4 @@
+using Seamwright.Core.Estimation;
 using Seamwright.Core.Features.ScaleSpace;
 
 namespace Seamwright.Pipeline.Pairs;
@@ -17,6 +18,15 @@ public sealed record ScaleSpaceLook
     /// three times the inliers below which a decision is weak, DecisionOptions.ConfidentInliers = 10).
     /// </summary>
     public int FewInliers { get; init; } = 30;
+
+    /// <summary>Whether a corner result is undecided enough for the second look (the texture and repeated-pattern exclusions read from its own words).</summary>
+    public bool Wants(PairEstimate corners)
+    {
+        ArgumentNullException.ThrowIfNull(corners);
+        return !corners.Terminations.Contains(PairProcessor.NoTexture)
+            && !corners.Reasons.Any(r => r.StartsWith(PairProcessor.RepeatedPatternPrefix, StringComparison.Ordinal))
+            && (corners.Status != PairStatus.Accepted || corners.Consensus.Final < FewInliers);
+    }
 
     public void Validate()
     {

@@ -21,6 +21,9 @@ public interface IProcessingObserver
     /// <summary>After the alignment stage: where the set's alignment time went.</summary>
     void AlignmentTimed(string setId, AlignmentTimes times) { }
 
+    /// <summary>After the second look: undecided pairs estimated again with scale-space features (or reused), and how many of them those features decided.</summary>
+    void SecondLooks(string setId, int estimated, int reused, int decidedByScaleSpace) { }
+
     void SetFinished(SetOutcome outcome);
 }
 

@@ -24,16 +24,19 @@ public sealed record PairRun(int A, int B, PairAnalysis Analysis, double PairMs,
 public static class PairRunner
 {
     /// <param name="runPlan">The run's settings snapshot (profile, limits, parallelism, feature memory): never the live options.</param>
+    /// <param name="reportEach">Report each pair to the observer as it is done, except those <paramref name="holdReport"/> keeps back.</param>
+    /// <param name="secondLook">Estimate with the scale-space second look (the pass for undecided pairs); otherwise corners only.</param>
     public static PairRun[] Run(ProcessingContext ctx, RunPlan runPlan, string setId, IReadOnlyList<PairImage> images,
-        IReadOnlyList<PlannedPair> plan, bool reportEach, CancellationToken cancel)
+        IReadOnlyList<PlannedPair> plan, bool reportEach, CancellationToken cancel, bool secondLook = false, Func<PairEstimate, bool>? holdReport = null)
     {
         ArgumentNullException.ThrowIfNull(ctx);
         ArgumentNullException.ThrowIfNull(runPlan);
         var profile = runPlan.Profile;
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(plan);
+        var estimation = profile.Estimation.WithScaleSpaceLook(secondLook);
         string featureFp = SettingsFingerprint.ForFeatures(profile.Features, ctx.Engine.Name, ctx.Engine.DescriptorVersion);
-        string pairFp = SettingsFingerprint.ForPair(featureFp, profile.Estimation, ctx.AlgorithmVersion);
+        string pairFp = SettingsFingerprint.ForPair(featureFp, estimation, ctx.AlgorithmVersion);
         var pathOf = new Dictionary<string, string>(StringComparer.Ordinal);
         foreach (var im in images)
         {
@@ -48,8 +51,8 @@ public static class PairRunner
             ctx.JobSlots.Wait(cancel);
             try
             {
-                results[k] = One(ctx, profile, images[a], images[b], a, b, pairFp, features);
-                if (reportEach)
+                results[k] = One(ctx, estimation, images[a], images[b], a, b, pairFp, features);
+                if (reportEach && holdReport?.Invoke(results[k].Analysis.Estimate) != true)
                 {
                     var e = results[k].Analysis.Estimate;
                     ctx.Observer.PairDone(setId, images[a].Key, images[b].Key, e.Status, e.Reasons);
@@ -62,7 +65,14 @@ public static class PairRunner
         });
         cancel.ThrowIfCancellationRequested();
         int reused = results.Count(r => r.Reused);
-        ctx.Observer.PairsCounted(setId, results.Length - reused, reused);
+        if (secondLook)
+        {
+            ctx.Observer.SecondLooks(setId, results.Length - reused, reused, results.Count(r => r.Analysis.Estimate.FeaturePath == FeaturePath.ScaleSpace));
+        }
+        else
+        {
+            ctx.Observer.PairsCounted(setId, results.Length - reused, reused);
+        }
         return results;
     }
 
@@ -74,13 +84,13 @@ public static class PairRunner
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(plan);
         string featureFp = SettingsFingerprint.ForFeatures(profile.Features, ctx.Engine.Name, ctx.Engine.DescriptorVersion);
-        string pairFp = SettingsFingerprint.ForPair(featureFp, profile.Estimation, ctx.AlgorithmVersion);
+        string pairFp = SettingsFingerprint.ForPair(featureFp, profile.Estimation.WithScaleSpaceLook(false), ctx.AlgorithmVersion);
         return plan.Count(p => !ctx.Pairs.Contains(pairFp, KeyOf(images[p.A], images[p.B])));
     }
 
     private static string KeyOf(PairImage a, PairImage b) => PairResultCache.Key(a.Hash, a.Key, b.Hash, b.Key);
 
-    private static PairRun One(ProcessingContext ctx, ProfileSettings profile, PairImage a, PairImage b, int ia, int ib, string pairFp, FeatureLru features)
+    private static PairRun One(ProcessingContext ctx, EstimationSettings estimation, PairImage a, PairImage b, int ia, int ib, string pairFp, FeatureLru features)
     {
         var sw = Stopwatch.StartNew();
         string key = KeyOf(a, b);
@@ -88,10 +98,10 @@ public static class PairRunner
         {
             return new PairRun(ia, ib, cached, sw.Elapsed.TotalMilliseconds, Reused: true);
         }
-        ulong seed = PairSeed.Derive(profile.Estimation.Seed, a.Key, b.Key);
+        ulong seed = PairSeed.Derive(estimation.Seed, a.Key, b.Key);
         var fa = features.Get(a.Hash);
         var fb = features.Get(b.Hash);
-        var pa = ctx.Engine.EstimatePair(fa, fb, profile.Estimation, seed);
+        var pa = ctx.Engine.EstimatePair(fa, fb, estimation, seed);
         ctx.Pairs.Put(pairFp, key, pa);
         return new PairRun(ia, ib, pa, sw.Elapsed.TotalMilliseconds, Reused: false);
     }

@@ -2,6 +2,7 @@ using Seamwright.Core.Cameras;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Alignment;
 using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Pairs;
 using Seamwright.Pipeline.Planning;
 using Seamwright.Pipeline.Settings;
 
@@ -38,13 +39,25 @@ public sealed record PairStageResult(IReadOnlyList<AnalysedImage> Images, PairPl
 /// profile's base seed and the two names), then review accepted pairs of <c>frames</c> sets
 /// against the rig baseline, in plan order; other sets get overlap-aware planning (pairs added
 /// where the first alignment predicts overlap, failures marked not expected where it predicts none).
+/// Estimates come from the corner features; the pairs still undecided and not ruled out by the
+/// overlap forecast then get the scale-space second look (<see cref="ScaleSpaceLook"/>), and each
+/// pair is reported to the observer once, with its final status.
 /// </summary>
 public sealed class PairStage(ProcessingContext ctx)
 {
+    private static readonly ScaleSpaceLook SecondLookRule = new();
+
+    /// <summary>The pairs whose report waits for the second look, by set and seed (a seed names one pair of a set; the stage serves every set).</summary>
+    private readonly System.Collections.Concurrent.ConcurrentDictionary<(string Set, ulong Seed), bool> _held = new();
+
     public PairStageResult Run(SetRun run, IReadOnlyList<AnalysedImage> images, CancellationToken cancel)
     {
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(images);
+        foreach (var stale in _held.Keys.Where(k => k.Set == run.SetId))
+        {
+            _held.TryRemove(stale, out _); // left by a cancelled run of the same set
+        }
         var good = images.Where(i => i.Analysis is not null).ToList();
         var plan = PairPlanner.Plan(run.Profile.Pairing, good.Select(g => new PlanImage(g.Key, g.Analysis!.CaptureTime, g.Analysis.Coarse)).ToList());
         ctx.Observer.PairsPlanned(run.SetId, plan.Pairs.Count);
@@ -52,19 +65,85 @@ public sealed class PairStage(ProcessingContext ctx)
         var cameras = SetCameras.Read([.. good.Select(g => g.File.FullPath)], [.. good.Select(g => g.Analysis!.Size)]);
         if (review is not null)
         {
-            var reviewed = Estimate(run, good, plan.Pairs, report: false, cancel);
+            var reviewed = SecondLook(run, good, Estimate(run, good, plan.Pairs, report: false, cancel), cancel);
             Review(review, run, good, reviewed);
             return new PairStageResult(good, plan, reviewed) { Cameras = cameras };
         }
-        return PlanByOverlap(run, good, plan, cameras, cancel) with { Cameras = cameras };
+        var planned = PlanByOverlap(run, good, plan, cameras, cancel) with { Cameras = cameras };
+        var looked = SecondLook(run, good, [.. planned.Pairs], cancel);
+        ReportHeld(run, good, looked);
+        bool changed = !looked.SequenceEqual(planned.Pairs);
+        // The forecast's set model was made from the corner results: the alignment makes its own when the second look changed any.
+        return changed ? planned with { Pairs = looked, SetModel = null } : planned;
     }
 
-    /// <summary>Estimates every planned pair (or takes it from the pair-result cache) through <see cref="PairRunner"/>.</summary>
+    /// <summary>The second look's judge of an undecided corner result (null when the profile or the engine has none).</summary>
+    private ScaleSpaceLook? Look(SetRun run) => run.Profile.Estimation.ScaleSpaceLook && ctx.Engine.HasSecondLook ? SecondLookRule : null;
+
+    /// <summary>
+    /// Estimates pairs from corners (or takes them from the pair-result cache) through
+    /// <see cref="PairRunner"/>; reports each as done unless the second look may still change it.
+    /// </summary>
     private PairResult[] Estimate(SetRun run, List<AnalysedImage> good, IReadOnlyList<PlannedPair> pairs, bool report, CancellationToken cancel)
     {
+        var look = Look(run);
+        bool Hold(PairEstimate e)
+        {
+            if (look is null || !look.Wants(e))
+            {
+                return false;
+            }
+            _held.TryAdd((run.SetId, e.Seed), true);
+            return true;
+        }
+        return Run(run, good, pairs, report, secondLook: false, look is null ? null : Hold, cancel);
+    }
+
+    private PairResult[] Run(SetRun run, List<AnalysedImage> good, IReadOnlyList<PlannedPair> pairs, bool report, bool secondLook,
+        Func<PairEstimate, bool>? hold, CancellationToken cancel)
+    {
         var pairImages = good.Select(g => new PairImage(g.Key, g.Hash!, g.File.FullPath)).ToList();
-        return PairRunner.Run(ctx, run.Plan, run.SetId, pairImages, pairs, reportEach: report, cancel)
+        return PairRunner.Run(ctx, run.Plan, run.SetId, pairImages, pairs, reportEach: report, cancel, secondLook, hold)
             .Select(r => new PairResult(r.A, r.B, r.Analysis, r.PairMs)).ToArray();
+    }
+
+    /// <summary>
+    /// The second look: the pairs the corners left undecided and that the overlap forecast does not
+    /// rule out are estimated again with the scale-space features too (PairProcessor keeps the better result).
+    /// </summary>
+    private PairResult[] SecondLook(SetRun run, List<AnalysedImage> good, PairResult[] results, CancellationToken cancel)
+    {
+        if (Look(run) is not { } look)
+        {
+            return results;
+        }
+        var undecided = Enumerable.Range(0, results.Length).Where(k => Undecided(look, results[k].Estimate)).ToArray();
+        if (undecided.Length == 0)
+        {
+            return results;
+        }
+        var again = Run(run, good, [.. undecided.Select(k => new PlannedPair(results[k].A, results[k].B))], report: false, secondLook: true, hold: null, cancel);
+        var merged = (PairResult[])results.Clone();
+        for (int j = 0; j < undecided.Length; j++)
+        {
+            merged[undecided[j]] = again[j];
+        }
+        return merged;
+    }
+
+    private static bool Undecided(ScaleSpaceLook look, PairEstimate e) =>
+        look.Wants(e) && !e.Reasons.Any(r => r.StartsWith(OverlapPlanning.NotExpectedPrefix, StringComparison.Ordinal));
+
+    /// <summary>Reports, in result order, the pairs the corner pass held back for the second look, with their final status.</summary>
+    private void ReportHeld(SetRun run, List<AnalysedImage> good, PairResult[] results)
+    {
+        foreach (var pr in results)
+        {
+            if (_held.TryRemove((run.SetId, pr.Estimate.Seed), out _))
+            {
+                ctx.Observer.PairDone(run.SetId, good[pr.A].Key, good[pr.B].Key, pr.Estimate.Status, pr.Estimate.Reasons);
+            }
+        }
     }
 
     /// <summary>

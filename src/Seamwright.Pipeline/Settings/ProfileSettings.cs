@@ -96,6 +96,18 @@ public sealed class EstimationSettings
     public bool RefineConsensus { get; set; } = true;
     /// <summary>Give pairs the corners leave weak, rejected or with few inliers a second look with scale-space features.</summary>
     public bool ScaleSpaceLook { get; set; } = true;
+
+    /// <summary>
+    /// A copy with the second look on or off: a set's pairs are estimated first without it, and the
+    /// undecided pairs expected to overlap again with it (Processing/PairStage), each pass under its own
+    /// pair fingerprint.
+    /// </summary>
+    public EstimationSettings WithScaleSpaceLook(bool on)
+    {
+        var copy = (EstimationSettings)MemberwiseClone();
+        copy.ScaleSpaceLook = on;
+        return copy;
+    }
     /// <summary>Confidence of the sampling termination bound (the standard RANSAC stopping rule).</summary>
     public double Confidence { get; set; } = 0.99;
     /// <summary>Most sampling iterations per pair (a work cap, never a time cap).</summary>

@@ -42,6 +42,8 @@ public sealed class RigBaselineReviewTests : IDisposable
 
         public byte[] Encode(ImageAnalysis analysis) => _inner.Encode(analysis);
 
+        public bool HasSecondLook => ((IPairEngine)_inner).HasSecondLook;
+
         public ImageAnalysis Decode(ReadOnlySpan<byte> data) => _inner.Decode(data);
 
         public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed)

@@ -237,13 +237,15 @@ public sealed partial class PairReuseTests
         ImageWriter.WritePng(path, pixels);
     }
 
-    /// <summary>The real engine, counting the pairs it estimates.</summary>
+    /// <summary>The real engine, counting the pairs it estimates from corners (the second looks of undecided pairs apart).</summary>
     private sealed class CountingEngine(IPairEngine inner) : IPairEngine
     {
-        private int _estimates;
+        private int _estimates, _secondLooks;
         private int _decodes;
 
         public int Estimates { get => Volatile.Read(ref _estimates); set => Volatile.Write(ref _estimates, value); }
+
+        public int SecondLooks => Volatile.Read(ref _secondLooks);
 
         /// <summary>Feature-cache entries decoded (read back in full).</summary>
         public int Decodes { get => Volatile.Read(ref _decodes); set => Volatile.Write(ref _decodes, value); }
@@ -259,6 +261,8 @@ public sealed partial class PairReuseTests
 
         public byte[] Encode(ImageAnalysis analysis) => inner.Encode(analysis);
 
+        public bool HasSecondLook => inner.HasSecondLook;
+
         public ImageAnalysis Decode(ReadOnlySpan<byte> data)
         {
             Interlocked.Increment(ref _decodes);
@@ -267,7 +271,7 @@ public sealed partial class PairReuseTests
 
         public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed)
         {
-            Interlocked.Increment(ref _estimates);
+            Interlocked.Increment(ref settings.ScaleSpaceLook ? ref _secondLooks : ref _estimates);
             return inner.EstimatePair(a, b, settings, seed);
         }
     }

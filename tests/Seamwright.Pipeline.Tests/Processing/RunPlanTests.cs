@@ -103,6 +103,8 @@ public class RunPlanTests
 
         public byte[] Encode(ImageAnalysis analysis) => _inner.Encode(analysis);
 
+        public bool HasSecondLook => ((IPairEngine)_inner).HasSecondLook;
+
         public ImageAnalysis Decode(ReadOnlySpan<byte> data) => _inner.Decode(data);
 
         public PairAnalysis EstimatePair(ImageAnalysis a, ImageAnalysis b, EstimationSettings settings, ulong seed) =>
