@@ -11,6 +11,12 @@ public enum FeaturePath
     /// the corner path leaves a pair weak, rejected or with few inliers.
     /// </summary>
     ScaleSpace,
+
+    /// <summary>
+    /// Scale-space features of simulated tilted views of each image matched against the other's
+    /// (Core/Features/ScaleSpace/AffineViews), the last step for pairs both other paths reject.
+    /// </summary>
+    AffineViews,
 }
 
 /// <summary>The words written for a feature path in every output (sidecars, confidence log, report, command output).</summary>
@@ -18,6 +24,12 @@ public static class FeaturePathWords
 {
     public const string Corners = "corners";
     public const string ScaleSpace = "scale-space";
+    public const string AffineViews = "affine-views";
 
-    public static string Word(this FeaturePath path) => path == FeaturePath.ScaleSpace ? ScaleSpace : Corners;
+    public static string Word(this FeaturePath path) => path switch
+    {
+        FeaturePath.ScaleSpace => ScaleSpace,
+        FeaturePath.AffineViews => AffineViews,
+        _ => Corners,
+    };
 }

@@ -131,7 +131,7 @@ public sealed class FeaturesEngine : IPairEngine
                 MaxIterations = settings.MaxIterations,
             },
             Matching = new MatchOptions { MaxRatio = settings.RatioTest },
-            ScaleSpace = settings.ScaleSpaceLook ? new ScaleSpaceLook() : null,
+            ScaleSpace = settings.ScaleSpaceLook ? new ScaleSpaceLook { AffineViews = settings.AffineViews } : null,
         };
         var outcome = PairProcessor.Process((ImageFeatures)a.Payload, (ImageFeatures)b.Payload, pair);
         return new PairAnalysis(outcome.Estimate, outcome.TiePoints);

@@ -95,6 +95,29 @@ public sealed class ImageFeatures
 
     private readonly Lock scaleSpaceGate = new();
     private (ScaleSpaceOptions Options, ScaleSpaceFeatureSet Set)? scaleSpace;
+    private readonly Lock affineGate = new();
+    private (ScaleSpaceOptions Options, int Tilts, int PerView, ScaleSpaceFeatureSet Set)? affine;
+
+    /// <summary>
+    /// The pooled scale-space features of simulated tilted views of <see cref="Compact"/>, in its pixels
+    /// (<see cref="AffineViewDetector"/>), computed on first use and kept like <see cref="ScaleSpace"/>.
+    /// </summary>
+    public ScaleSpaceFeatureSet? AffineViewFeatures(ScaleSpaceOptions options, int tilts, int featuresPerView)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        if (Compact is null)
+        {
+            return null;
+        }
+        lock (affineGate)
+        {
+            if (affine is not { } held || held.Options != options || held.Tilts != tilts || held.PerView != featuresPerView)
+            {
+                affine = (options, tilts, featuresPerView, Unmasked(AffineViewDetector.Detect(Compact.Image, options, tilts, featuresPerView)));
+            }
+            return affine.Value.Set;
+        }
+    }
 
     /// <summary>
     /// The scale-space features of <see cref="Compact"/> (in its pixels), computed on first use and

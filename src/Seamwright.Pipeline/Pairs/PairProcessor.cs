@@ -25,23 +25,34 @@ public static class PairProcessor
         {
             return corners;
         }
-        var (second, summary) = ScaleSpacePath.Process(a, b, settings, look);
-        if (second is not null && Better(second.Estimate, corners.Estimate))
+        var best = corners;
+        var notes = new List<string>();
+        foreach (var path in Paths(look))
         {
-            var e = second.Estimate;
-            string first = Inv($"corner path: {corners.Estimate.Status.ToString().ToLowerInvariant()} with {corners.Estimate.Consensus.Final} inliers of {corners.MatchCount} matches");
-            return second with
+            if (path == FeaturePath.AffineViews && best.Estimate.Status != PairStatus.Rejected)
             {
-                Estimate = e with { Terminations = [summary, first, .. e.Terminations] },
-                TimingsMs = second.TimingsMs with { Total = corners.TimingsMs.Total + second.TimingsMs.Total },
-            };
+                break; // the last step is only for pairs every other path rejects
+            }
+            var (outcome, summary) = ScaleSpacePath.Process(a, b, settings, look, path);
+            notes.Add(summary);
+            if (outcome is not null && Better(outcome.Estimate, best.Estimate))
+            {
+                best = outcome with { TimingsMs = outcome.TimingsMs with { Total = best.TimingsMs.Total + outcome.TimingsMs.Total } };
+            }
+            else if (outcome is not null)
+            {
+                best = best with { TimingsMs = best.TimingsMs with { Total = best.TimingsMs.Total + outcome.TimingsMs.Total } };
+            }
         }
-        return corners with
-        {
-            Estimate = corners.Estimate with { Terminations = [.. corners.Estimate.Terminations, summary + " (the corner result stands)"] },
-            TimingsMs = corners.TimingsMs with { Total = corners.TimingsMs.Total + (second?.TimingsMs.Total ?? 0) },
-        };
+        var e = best.Estimate;
+        string first = Inv($"corner path: {corners.Estimate.Status.ToString().ToLowerInvariant()} with {corners.Estimate.Consensus.Final} inliers of {corners.MatchCount} matches");
+        return best == corners || e.FeaturePath == FeaturePath.Corners
+            ? best with { Estimate = e with { Terminations = [.. e.Terminations, .. notes.Select(n => n + " (the corner result stands)")] } }
+            : best with { Estimate = e with { Terminations = [.. notes, first, .. e.Terminations] } };
     }
+
+    private static IEnumerable<FeaturePath> Paths(ScaleSpaceLook look) =>
+        look.AffineViews ? [FeaturePath.ScaleSpace, FeaturePath.AffineViews] : [FeaturePath.ScaleSpace];
 
     /// <summary>
     /// The scale-space result replaces a rejected corner result when it is not rejected itself, and

@@ -19,6 +19,18 @@ public sealed record ScaleSpaceLook
     /// </summary>
     public int FewInliers { get; init; } = 30;
 
+    /// <summary>
+    /// As a last step for a pair both feature paths reject, match simulated tilted views of each image
+    /// against the other (Morel and Yu 2009). Costly (17 views per image), so only for such pairs.
+    /// </summary>
+    public bool AffineViews { get; init; } = true;
+
+    /// <summary>Simulated tilts sqrt(2)^1..sqrt(2)^n (3: up to 2.8, a camera about 70 degrees off the other's axis).</summary>
+    public int Tilts { get; init; } = 3;
+
+    /// <summary>Strongest scale-space features kept per simulated view.</summary>
+    public int FeaturesPerView { get; init; } = 1000;
+
     /// <summary>Whether a corner result is undecided enough for the second look (the texture and repeated-pattern exclusions read from its own words).</summary>
     public bool Wants(PairEstimate corners)
     {
@@ -33,5 +45,7 @@ public sealed record ScaleSpaceLook
         ArgumentNullException.ThrowIfNull(Detector);
         Detector.Validate();
         ArgumentOutOfRangeException.ThrowIfNegative(FewInliers);
+        ArgumentOutOfRangeException.ThrowIfLessThan(Tilts, 1);
+        ArgumentOutOfRangeException.ThrowIfLessThan(FeaturesPerView, 1);
     }
 }

@@ -41,7 +41,7 @@ public static class ReportProvenanceBuilder
             new("threshold", I(p.Estimation.ThresholdPx) + " px"),
             new("seed", p.Estimation.Seed.ToString(CultureInfo.InvariantCulture)),
             new("consensus refinement", p.Estimation.RefineConsensus ? "on" : "off"),
-            new("scale-space second look", p.Estimation.ScaleSpaceLook ? "on" : "off"),
+            new("scale-space second look", p.Estimation.ScaleSpaceLook ? (p.Estimation.AffineViews ? "on, with tilted views" : "on") : "off"),
             new("ratio test", I(p.Estimation.RatioTest)),
             new("pairing", p.Pairing.Mode.ToString().ToLowerInvariant() + ", neighbour span " + p.Pairing.NeighbourSpan.ToString(CultureInfo.InvariantCulture)),
             new("corners per image", p.Features.MaxKeypoints.ToString(CultureInfo.InvariantCulture)),

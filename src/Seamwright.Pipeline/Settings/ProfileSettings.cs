@@ -96,6 +96,8 @@ public sealed class EstimationSettings
     public bool RefineConsensus { get; set; } = true;
     /// <summary>Give pairs the corners leave weak, rejected or with few inliers a second look with scale-space features.</summary>
     public bool ScaleSpaceLook { get; set; } = true;
+    /// <summary>Within the second look, as a last step for pairs still rejected: match simulated tilted views (affine view synthesis).</summary>
+    public bool AffineViews { get; set; } = true;
 
     /// <summary>
     /// A copy with the second look on or off: a set's pairs are estimated first without it, and the

@@ -11,7 +11,7 @@ namespace Seamwright.Pipeline.Tests.Pairs;
 public class OxfordPairTests(ITestOutputHelper output)
 {
     [Fact]
-    public void Process_OxfordPairs_AtLeastThirtySevenWithinFivePixels()
+    public void Process_OxfordPairs_AtLeastThirtyNineWithinFivePixels()
     {
         var set = OxfordSet.TryLoad();
         if (set is null)
@@ -47,7 +47,9 @@ public class OxfordPairTests(ITestOutputHelper output)
         double median = 0.5 * (sorted[19] + sorted[20]);
         output.WriteLine($"within 5 px: {good}/40, median {median:F2} px");
         // Measured before issue 13's work: 35/40, median 0.68 px; with guided matching and 8 levels 37/40, 0.60 px.
-        Assert.True(good >= 37, $"only {good} of 40 within 5 px ({OxfordSet.Source})");
-        Assert.True(median <= 0.62, $"median {median:F2} px above 0.62 px ({OxfordSet.Source})");
+        // With the second look (2026-12-03): 39/40, median 0.55 px; graf 1-6 (0.38 px) and wall 1-6 (1.92 px), rejected by
+        // corners and plain scale-space features alike, are decided by the tilted views. Only boat 1-6 (6.2 px) misses.
+        Assert.True(good >= 39, $"only {good} of 40 within 5 px ({OxfordSet.Source})");
+        Assert.True(median <= 0.58, $"median {median:F2} px above 0.58 px ({OxfordSet.Source})");
     }
 }

@@ -67,7 +67,10 @@ public class SettingsFingerprintStabilityTests
         p.Features.Masks.Add(new MaskRect { X = 0.1, Y = 0.2, Width = 0.3, Height = 0.4 });
         string c = SettingsFingerprint.ForSet(p, new LimitSettings(), "features", 1);
         string d = SettingsFingerprint.ForFeatures(p.Features, "features", "d1");
-        Assert.Equal(["848fe476a6b53e3e", "8c1cd794d69d1bf8", "8b67ab88ee6305a0", "1059b7bb61bf37a7"], new[] { a, b, c, d });
+        // The set digests (a, c) changed on purpose when the estimation settings gained ScaleSpaceLook and
+        // AffineViews (2026-12-03: pair results can change, so recorded sets are processed again); before that
+        // they were 848fe476a6b53e3e and 8b67ab88ee6305a0. The feature digests (b, d) are those before the rename.
+        Assert.Equal(["9769ba564fac92a5", "8c1cd794d69d1bf8", "311a18f208940ad6", "1059b7bb61bf37a7"], new[] { a, b, c, d });
     }
 
     [Fact]
