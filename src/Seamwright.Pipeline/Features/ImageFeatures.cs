@@ -93,10 +93,8 @@ public sealed class ImageFeatures
     /// <summary>The feature mask at the compact copy's size (255 = use, 0 = excluded); null when nothing is excluded.</summary>
     public GrayImage? CompactMask { get; }
 
-    private readonly Lock scaleSpaceGate = new();
-    private (ScaleSpaceOptions Options, ScaleSpaceFeatureSet Set)? scaleSpace;
-    private readonly Lock affineGate = new();
-    private (ScaleSpaceOptions Options, int Tilts, int PerView, ScaleSpaceFeatureSet Set)? affine;
+    private readonly LastComputed<ScaleSpaceOptions> scaleSpace = new();
+    private readonly LastComputed<(ScaleSpaceOptions, int, int)> affine = new();
 
     /// <summary>
     /// The pooled scale-space features of simulated tilted views of <see cref="Compact"/>, in its pixels
@@ -109,14 +107,7 @@ public sealed class ImageFeatures
         {
             return null;
         }
-        lock (affineGate)
-        {
-            if (affine is not { } held || held.Options != options || held.Tilts != tilts || held.PerView != featuresPerView)
-            {
-                affine = (options, tilts, featuresPerView, Unmasked(AffineViewDetector.Detect(Compact.Image, options, tilts, featuresPerView)));
-            }
-            return affine.Value.Set;
-        }
+        return affine.Get((options, tilts, featuresPerView), () => Unmasked(AffineViewDetector.Detect(Compact.Image, options, tilts, featuresPerView)));
     }
 
     /// <summary>
@@ -131,13 +122,25 @@ public sealed class ImageFeatures
         {
             return null;
         }
-        lock (scaleSpaceGate)
+        return scaleSpace.Get(options, () => Unmasked(ScaleSpaceDetector.Detect(Compact.Image, options)));
+    }
+
+    /// <summary>The features computed for the last key asked for, kept until another key is asked for; one computation at a time.</summary>
+    private sealed class LastComputed<TKey> where TKey : IEquatable<TKey>
+    {
+        private readonly Lock gate = new();
+        private (TKey Key, ScaleSpaceFeatureSet Set)? held;
+
+        public ScaleSpaceFeatureSet Get(TKey key, Func<ScaleSpaceFeatureSet> compute)
         {
-            if (scaleSpace is not { } held || held.Options != options)
+            lock (gate)
             {
-                scaleSpace = (options, Unmasked(ScaleSpaceDetector.Detect(Compact.Image, options)));
+                if (held is not { } h || !h.Key.Equals(key))
+                {
+                    held = (key, compute());
+                }
+                return held.Value.Set;
             }
-            return scaleSpace.Value.Set;
         }
     }
 

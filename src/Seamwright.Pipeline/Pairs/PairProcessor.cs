@@ -35,18 +35,16 @@ public static class PairProcessor
             }
             var (outcome, summary) = ScaleSpacePath.Process(a, b, settings, look, path);
             notes.Add(summary);
-            if (outcome is not null && Better(outcome.Estimate, best.Estimate))
+            if (outcome is not null)
             {
-                best = outcome with { TimingsMs = outcome.TimingsMs with { Total = best.TimingsMs.Total + outcome.TimingsMs.Total } };
-            }
-            else if (outcome is not null)
-            {
-                best = best with { TimingsMs = best.TimingsMs with { Total = best.TimingsMs.Total + outcome.TimingsMs.Total } };
+                double total = best.TimingsMs.Total + outcome.TimingsMs.Total;
+                var kept = Better(outcome.Estimate, best.Estimate) ? outcome : best;
+                best = kept with { TimingsMs = kept.TimingsMs with { Total = total } };
             }
         }
         var e = best.Estimate;
         string first = Inv($"corner path: {corners.Estimate.Status.ToString().ToLowerInvariant()} with {corners.Estimate.Consensus.Final} inliers of {corners.MatchCount} matches");
-        return best == corners || e.FeaturePath == FeaturePath.Corners
+        return e.FeaturePath == FeaturePath.Corners
             ? best with { Estimate = e with { Terminations = [.. e.Terminations, .. notes.Select(n => n + " (the corner result stands)")] } }
             : best with { Estimate = e with { Terminations = [.. notes, first, .. e.Terminations] } };
     }
