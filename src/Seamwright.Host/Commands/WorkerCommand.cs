@@ -47,7 +47,8 @@ internal static class WorkerCommand
             Console.Error.WriteLine($"seamwright worker: TEST FAULT HOOKS ACTIVE ({faults.Count} files)");
         }
         // Allocator limit: half the budget for one buffer, the rest for the decoder's other planes and the features.
-        var job = new WorkerJobs(new EngineJob(budget / 2), new DecodeJob(budget / 2, TimeSpan.FromSeconds(timeoutSeconds)));
+        var job = new WorkerJobs(new EngineJob(budget / 2), new DecodeJob(budget / 2, TimeSpan.FromSeconds(timeoutSeconds)),
+            new PreviewJob(budget / 2, TimeSpan.FromSeconds(timeoutSeconds)));
         try
         {
             return Serve(input, output, job, faults, limits).GetAwaiter().GetResult();

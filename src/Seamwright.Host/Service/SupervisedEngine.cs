@@ -2,6 +2,7 @@ using System.Text.Json;
 using Seamwright.Core.Estimation;
 using Seamwright.Host.Supervision;
 using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Preview;
 using Seamwright.Pipeline.Settings;
 
 namespace Seamwright.Host.Service;
@@ -51,4 +52,28 @@ internal sealed class SupervisedEngine(IPairEngine inner, DecodeSupervisor super
         inner.EstimatePair(a, b, settings, seed);
 
     public bool HasSecondLook => inner.HasSecondLook;
+
+    /// <summary>
+    /// The preview's images are opened in the supervised workers too (<see cref="PreviewJob"/>),
+    /// so no image is decoded in the service process; a file a worker cannot open gives null.
+    /// </summary>
+    public PreviewImageOpener PreviewOpener(IReadOnlyList<string> paths, LimitSettings limits, MemoryBudget budget)
+    {
+        string limitsJson = JsonSerializer.Serialize(limits);
+        return (index, maxLongSide) =>
+        {
+            Directory.CreateDirectory(scratchFolder);
+            string output = Path.Combine(scratchFolder, Guid.NewGuid().ToString("N") + ".preview");
+            try
+            {
+                var outcome = supervisor.DecodeAsync(paths[index], CancellationToken.None, output, new WorkerJobSpec(inner.Name, "{}", limitsJson, maxLongSide))
+                    .GetAwaiter().GetResult();
+                return outcome.Status == DecodeStatus.Decoded ? PreviewPixels.Read(File.ReadAllBytes(output)) : null;
+            }
+            finally
+            {
+                File.Delete(output);
+            }
+        };
+    }
 }

@@ -44,8 +44,9 @@ internal sealed class EngineJob(long budgetBytes) : IWorkerJob
     }
 }
 
-/// <summary>Routes a request to the engine job when it names an engine, else to the default decode job.</summary>
-internal sealed class WorkerJobs(IWorkerJob engineJob, IWorkerJob decodeJob) : IWorkerJob
+/// <summary>Routes a request: a preview to the preview job, one naming an engine to the engine job, else to the default decode job.</summary>
+internal sealed class WorkerJobs(IWorkerJob engineJob, IWorkerJob decodeJob, IWorkerJob previewJob) : IWorkerJob
 {
-    public WorkerReply Run(WorkerRequest request) => request.Engine is null ? decodeJob.Run(request) : engineJob.Run(request);
+    public WorkerReply Run(WorkerRequest request) =>
+        request.PreviewMaxSide > 0 ? previewJob.Run(request) : request.Engine is null ? decodeJob.Run(request) : engineJob.Run(request);
 }

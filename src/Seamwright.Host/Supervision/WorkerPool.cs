@@ -65,7 +65,7 @@ internal sealed class WorkerPool : IAsyncDisposable
             }
             var request = new WorkerRequest(Interlocked.Increment(ref _nextId), path,
                 _options.MaxFileMegabytes << 20, (long)(_options.MaxMegapixels * 1_000_000), featureOutputPath,
-                spec?.Engine, spec?.FeaturesJson, spec?.LimitsJson);
+                spec?.Engine, spec?.FeaturesJson, spec?.LimitsJson, spec?.PreviewMaxSide ?? 0);
             Interlocked.Increment(ref _jobs);
             var result = await worker.RunAsync(request, _options, cancellationToken);
             RecordPeak(result.PeakWorkingSetBytes);

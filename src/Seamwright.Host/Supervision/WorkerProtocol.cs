@@ -88,13 +88,18 @@ internal sealed record WorkerHello(int Protocol, int ProcessId, string Limits);
 /// there (atomic write) instead of sending them back; the reply stays small. With
 /// <paramref name="Engine"/> the worker runs that pair engine's analysis with the given
 /// settings (JSON) and writes the engine's cache encoding; without it, the loader and the
-/// feature extractor with default settings, written in the feature cache codec.
+/// feature extractor with default settings, written in the feature cache codec. With
+/// <paramref name="PreviewMaxSide"/> above 0 it writes the image's colour preview instead.
 /// </summary>
 internal sealed record WorkerRequest(long Id, string Path, long MaxFileBytes, long MaxPixels, string? FeatureOutputPath = null,
-    string? Engine = null, string? FeaturesJson = null, string? LimitsJson = null);
+    string? Engine = null, string? FeaturesJson = null, string? LimitsJson = null, int PreviewMaxSide = 0);
 
-/// <summary>Which analysis a job runs: a pair engine by name with its settings as JSON.</summary>
-internal sealed record WorkerJobSpec(string Engine, string FeaturesJson, string LimitsJson);
+/// <summary>
+/// Which analysis a job runs: a pair engine by name with its settings as JSON; with
+/// <paramref name="PreviewMaxSide"/> above 0, the colour preview of the image at that long side
+/// instead (<see cref="PreviewJob"/>, limits from <paramref name="LimitsJson"/>).
+/// </summary>
+internal sealed record WorkerJobSpec(string Engine, string FeaturesJson, string LimitsJson, int PreviewMaxSide = 0);
 
 /// <summary>
 /// The answer to one job. <paramref name="Ok"/> false means the file is bad (the reason says

@@ -54,7 +54,7 @@ public static class SetAlignmentStage
         var cameras = Enumerable.Range(0, images.Count)
             .Select(i => setModel.Rotation?.Poses[i] is { } pose ? SidecarCamera.From(pose) : null).ToArray();
         var reasons = alignment.Images.Select(p => p.IsPlaced ? null : p.Reason ?? "not placed").ToArray();
-        open ??= new PreviewFiles(paths).Open;
+        open ??= new PreviewLoader(paths, new Settings.LimitSettings(), new Analysis.MemoryBudget(1L << 30)).Open;
         start = System.Diagnostics.Stopwatch.GetTimestamp();
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
             new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel, provenance);

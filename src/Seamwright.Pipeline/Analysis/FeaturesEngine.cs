@@ -35,11 +35,7 @@ public sealed class FeaturesEngine : IPairEngine
         ArgumentNullException.ThrowIfNull(features);
         ArgumentNullException.ThrowIfNull(limits);
         ArgumentNullException.ThrowIfNull(budget);
-        var loader = new ImageLoader(new LoadLimits
-        {
-            MaxFileBytes = (long)(limits.MaxFileMegabytes * 1024 * 1024),
-            MaxPixels = (long)(limits.MaxMegapixels * 1e6),
-        });
+        var loader = new ImageLoader(LoadLimits.From(limits));
         LoadedImage loaded;
         try
         {

@@ -1,5 +1,6 @@
 using Seamwright.Core.Estimation;
 using Seamwright.Core.Geometry;
+using Seamwright.Pipeline.Preview;
 using Seamwright.Pipeline.Settings;
 
 namespace Seamwright.Pipeline.Analysis;
@@ -38,4 +39,13 @@ public interface IPairEngine
     /// Decorators forward it.
     /// </summary>
     bool HasSecondLook => false;
+
+    /// <summary>
+    /// Opens the set's images (by index into <paramref name="paths"/>) in colour for the preview
+    /// and the report's thumbnails, with the run's limits; an image that cannot be opened gives
+    /// null. In this process by default (<see cref="PreviewLoader"/>); the service's engine opens
+    /// them in its supervised workers, like every other decode.
+    /// </summary>
+    PreviewImageOpener PreviewOpener(IReadOnlyList<string> paths, LimitSettings limits, MemoryBudget budget) =>
+        new PreviewLoader(paths, limits, budget).Open;
 }

@@ -28,7 +28,7 @@ namespace Seamwright.Pipeline.Loading;
 /// become 8 by a percentile stretch. Files are opened read-only and never changed. Every
 /// failure is an <see cref="ImageLoadException"/> naming the file. Thread-safe.
 /// </summary>
-public sealed class ImageLoader
+public sealed partial class ImageLoader
 {
     private readonly Configuration _configuration;
 

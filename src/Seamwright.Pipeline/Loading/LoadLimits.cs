@@ -40,6 +40,17 @@ public sealed record LoadLimits
     /// <summary>Percentile of the histogram that maps to 255 when converting 16-bit images. Default 99.9 (common practice).</summary>
     public double StretchHighPercent { get; init; } = 99.9;
 
+    /// <summary>The limits a run's settings (<c>Seamwright:Limits</c>) give the loader; the rest at their defaults.</summary>
+    public static LoadLimits From(Settings.LimitSettings limits)
+    {
+        ArgumentNullException.ThrowIfNull(limits);
+        return new LoadLimits
+        {
+            MaxFileBytes = (long)(limits.MaxFileMegabytes * 1024 * 1024),
+            MaxPixels = (long)(limits.MaxMegapixels * 1e6),
+        };
+    }
+
     /// <summary>Throws with the name of the first setting out of range.</summary>
     public void Validate()
     {

@@ -16,18 +16,12 @@ public sealed class AlignmentStep(ProcessingContext ctx)
         var provenance = Report.ReportProvenanceBuilder.For(run.Set, run.Profile, writtenUtc, ProcessingContext.ToolVersion, SetManifest.BadFiles(all, pairs));
         var images = pairs.Images.Select(g => new AlignedImage(g.Key, g.Analysis!.Size)).ToList();
         var aligned = pairs.Pairs.Select(p => new AlignedPair(p.A, p.B, p.Estimate, p.Analysis.TiePoints)).ToList();
-        // The preview decodes every placed image once more, in colour and downscaled: reserve the
-        // decode in the shared memory budget like any other decode.
+        // The preview opens every placed image once more, in colour and downscaled, through the
+        // engine: the loader with this run's limits (in the service, in a supervised worker).
         var paths = pairs.Images.Select(g => g.File.FullPath).ToList();
-        var files = new PreviewFiles(paths);
+        var open = ctx.Engine.PreviewOpener(paths, run.Plan.Limits, ctx.Budget);
         var result = SetAlignmentStage.Run(run.SetId, run.RunId.ToString(CultureInfo.InvariantCulture), run.Fingerprint, images, paths, aligned,
-            run.Profile.Estimation.MotionModel, run.Profile.Alignment,
-            (i, side) =>
-            {
-                long bytes = 4L * images[i].Size.Width * images[i].Size.Height;
-                using var reservation = ctx.Budget.Reserve(bytes, CancellationToken.None);
-                return files.Open(i, side);
-            }, provenance, pairs.SetModel, pairs.Cameras);
+            run.Profile.Estimation.MotionModel, run.Profile.Alignment, open, provenance, pairs.SetModel, pairs.Cameras);
         ctx.Observer.AlignmentTimed(run.SetId, new AlignmentTimes(pairs.OverlapPlanningMs, result.AlignMs, result.VisualsMs));
         return result;
     }

@@ -1,6 +1,9 @@
 using System.Text.Json;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Alignment;
+using Seamwright.Pipeline.Analysis;
+using Seamwright.Pipeline.Preview;
+using Seamwright.Pipeline.Settings;
 using Seamwright.Pipeline.Tests.Preview;
 using SixLabors.ImageSharp;
 
@@ -32,7 +35,7 @@ public sealed class SetVisualsTests
             pairs.Add(new AlignedPair(0, 6, Estimate(null, 0, PairStatus.Rejected), []));
             var alignment = SetAlignmentInputs.Align(images, pairs, MotionModel.Translation);
             Assert.Equal(6, alignment.PlacedCount);
-            var files = new PreviewFiles(paths);
+            var files = new PreviewLoader(paths, new LimitSettings(), new MemoryBudget(1L << 30));
             var visuals = SetVisuals.Build("tiles", "7", "fp", images, pairs, alignment, files.Open);
             Assert.NotNull(visuals.PreviewJpeg);
             using (var preview = Image.Load(visuals.PreviewJpeg))
