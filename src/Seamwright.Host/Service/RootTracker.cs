@@ -1,5 +1,6 @@
 using Seamwright.Pipeline.Processing;
 using Seamwright.Pipeline.Sets;
+using Seamwright.Pipeline.Settings;
 using Seamwright.Pipeline.State;
 
 namespace Seamwright.Host.Service;
@@ -44,19 +45,26 @@ internal sealed class TrackedSet(string id, DateTime nowUtc)
 }
 
 /// <summary>
-/// The scheduler's view of one root: every set with its files, the stability gate, completion,
-/// and the lifecycle (a done set whose inputs change becomes stale and waits again). The ledger
-/// is the durable truth; this is rebuilt from a full scan at start.
+/// One root as the scheduler sees it: the file polling (catalog scans, hints, looks at files in
+/// the stability gate) and the ledger writes around the pure decisions of <see cref="SetLifecycle"/>.
+/// The ledger is the durable truth; this is rebuilt from a full scan at start.
 /// </summary>
-internal sealed class RootTracker(int index, RootSession session)
+internal sealed class RootTracker : ISetFacts
 {
-    private readonly Dictionary<string, TrackedSet> _sets = new(StringComparer.Ordinal);
+    private readonly SetLifecycle _life;
 
-    public int Index { get; } = index;
+    public RootTracker(int index, RootSession session)
+    {
+        Index = index;
+        Session = session;
+        _life = new SetLifecycle(this);
+    }
 
-    public RootSession Session { get; } = session;
+    public int Index { get; }
 
-    public IReadOnlyDictionary<string, TrackedSet> Sets => _sets;
+    public RootSession Session { get; }
+
+    public IReadOnlyDictionary<string, TrackedSet> Sets => _life.Sets;
 
     /// <summary>
     /// Rebuilds from a full scan at start: sets already up to date are done, the rest wait (through
@@ -67,26 +75,11 @@ internal sealed class RootTracker(int index, RootSession session)
     {
         foreach (var s in Session.Catalog.Discover())
         {
-            var t = new TrackedSet(s.SetId, now);
             bool upToDate = Session.Context.IsUpToDate(s);
-            foreach (var f in s.Files)
-            {
-                t.Files[f.Key] = new TrackedFile(f, upToDate ? now.AddSeconds(-stableSeconds) : now);
-            }
-            if (upToDate)
-            {
-                t.Phase = SetPhase.Done;
-                t.LastChangeUtc = DateTime.MinValue;
-            }
-            else
-            {
-                var rec = Session.Context.Store.GetSet(s.SetId);
-                Session.Context.Store.SetState(s.SetId, rec?.DoneRun is null ? SetStates.Pending : SetStates.Stale, s.Profile,
-                    rec?.DoneRun is null ? null : "inputs or settings changed since the last run");
-            }
-            _sets[s.SetId] = t;
+            _life.Found(s, upToDate, !upToDate && Session.Context.Store.GetSet(s.SetId)?.DoneRun is not null, now, stableSeconds);
+            Write();
         }
-        return Session.ServedThisRootBefore ? SetRetirement.RetireMissing(Session.Context, _sets.Keys) : [];
+        return Session.ServedThisRootBefore ? SetRetirement.RetireMissing(Session.Context, [.. _life.Sets.Keys]) : [];
     }
 
     /// <summary>
@@ -98,15 +91,14 @@ internal sealed class RootTracker(int index, RootSession session)
     public List<string> RetireEmptied(DateTime now, double graceSeconds)
     {
         var retired = new List<string>();
-        foreach (var set in _sets.Values.Where(s => s.Files.Count == 0 && s.Phase is not (SetPhase.Queued or SetPhase.Running)
-            && (now - s.LastChangeUtc).TotalSeconds >= graceSeconds).ToList())
+        foreach (var id in _life.Emptied(now, graceSeconds))
         {
-            if (Session.Context.Store.GetSet(set.Id) is { State: not SetStates.Retired })
+            if (Session.Context.Store.GetSet(id) is { State: not SetStates.Retired })
             {
-                SetRetirement.Retire(Session.Context, set.Id);
-                retired.Add(set.Id);
+                SetRetirement.Retire(Session.Context, id);
+                retired.Add(id);
             }
-            _sets.Remove(set.Id);
+            _life.Forget(id);
         }
         return retired;
     }
@@ -118,12 +110,9 @@ internal sealed class RootTracker(int index, RootSession session)
     /// </summary>
     public List<string> Rescan(DateTime now)
     {
-        var found = Session.Catalog.Discover().ToDictionary(s => s.SetId, StringComparer.Ordinal);
-        var changed = new List<string>();
-        foreach (var id in _sets.Keys.Union(found.Keys).ToList())
-        {
-            Reconcile(id, found.TryGetValue(id, out var s) ? s.Files : [], now, changed);
-        }
+        var found = Session.Catalog.Discover().ToDictionary(s => s.SetId, s => s.Files, StringComparer.Ordinal);
+        var changed = _life.Reconcile(found, now);
+        Write();
         return changed;
     }
 
@@ -137,211 +126,68 @@ internal sealed class RootTracker(int index, RootSession session)
             return Session.Catalog.IsExcluded(path) || (File.Exists(path) && !Directory.Exists(path));
         }
         var (setId, key) = where.Value;
-        if (!_sets.TryGetValue(setId, out var set))
-        {
-            set = _sets[setId] = new TrackedSet(setId, now);
-        }
         var info = new FileInfo(path);
-        if (info.Exists)
-        {
-            var file = new InputFile(info.FullName, Session.Catalog.RootRelative(info.FullName), key, info.Length, info.LastWriteTimeUtc.Ticks);
-            Upsert(set, file, now);
-        }
-        else if (set.Files.Remove(key))
-        {
-            Changed(set, now, $"{key} removed");
-        }
+        _life.Observed(setId, key, info.Exists
+            ? new InputFile(info.FullName, Session.Catalog.RootRelative(info.FullName), key, info.Length, info.LastWriteTimeUtc.Ticks)
+            : null, now);
+        Write();
         return true;
     }
 
     /// <summary>Looks again at files not yet past the stability gate (size and time unchanged across looks).</summary>
     public void Relook(DateTime now, double stableSeconds)
     {
-        foreach (var set in _sets.Values.Where(s => s.Phase == SetPhase.Waiting))
+        foreach (var (setId, file) in _life.InGate(now, stableSeconds))
         {
-            foreach (var (key, tf) in set.Files.ToList())
-            {
-                if ((now - tf.StableSinceUtc).TotalSeconds >= stableSeconds)
-                {
-                    continue;
-                }
-                var info = new FileInfo(tf.File.FullPath);
-                if (!info.Exists)
-                {
-                    set.Files.Remove(key);
-                    Changed(set, now, $"{key} removed");
-                }
-                else
-                {
-                    Upsert(set, tf.File with { Size = info.Length, MtimeTicks = info.LastWriteTimeUtc.Ticks }, now);
-                }
-            }
+            var info = new FileInfo(file.FullPath);
+            _life.Observed(setId, file.Key, info.Exists ? file with { Size = info.Length, MtimeTicks = info.LastWriteTimeUtc.Ticks } : null, now);
         }
-    }
-
-    private void Reconcile(string setId, IReadOnlyList<InputFile> files, DateTime now, List<string> changed)
-    {
-        if (!_sets.TryGetValue(setId, out var set))
-        {
-            if (files.Count == 0)
-            {
-                return;
-            }
-            set = _sets[setId] = new TrackedSet(setId, now);
-        }
-        var keys = new HashSet<string>(files.Select(f => f.Key), StringComparer.Ordinal);
-        foreach (var gone in set.Files.Keys.Where(k => !keys.Contains(k)).ToList())
-        {
-            set.Files.Remove(gone);
-            Changed(set, now, $"{gone} removed");
-        }
-        foreach (var f in files)
-        {
-            if (Upsert(set, f, now))
-            {
-                changed.Add(f.FullPath);
-            }
-        }
-    }
-
-    /// <summary>Records the file's size and time; true when that is a change.</summary>
-    private bool Upsert(TrackedSet set, InputFile file, DateTime now)
-    {
-        if (set.Files.TryGetValue(file.Key, out var tf))
-        {
-            if (tf.File.Size == file.Size && tf.File.MtimeTicks == file.MtimeTicks)
-            {
-                return false;
-            }
-            tf.File = file;
-            tf.StableSinceUtc = now;
-            Changed(set, now, $"{file.Key} replaced or still being written");
-        }
-        else
-        {
-            set.Files[file.Key] = new TrackedFile(file, now);
-            Changed(set, now, $"{file.Key} added");
-        }
-        return true;
-    }
-
-    private void Changed(TrackedSet set, DateTime now, string what)
-    {
-        set.LastChangeUtc = now;
-        set.TriggerUtc = now;
-        switch (set.Phase)
-        {
-            case SetPhase.Done:
-            case SetPhase.Failed:
-                set.Phase = SetPhase.Waiting;
-                set.FirstSeenUtc = now;
-                Session.Context.Store.SetState(set.Id, SetStates.Stale, Session.Catalog.ProfileFor(set.Id), what);
-                break;
-            case SetPhase.Queued:
-            case SetPhase.Running:
-                set.ChangedWhileBusy = true;
-                break;
-            case SetPhase.Waiting:
-                break;
-        }
+        Write();
     }
 
     /// <summary>After a settings reload: done sets whose fingerprint changed become stale and wait.</summary>
     public int ApplySettingsChange(DateTime now)
     {
-        int n = 0;
-        foreach (var set in _sets.Values.Where(s => s.Phase is SetPhase.Done or SetPhase.Failed))
-        {
-            var inputs = Session.Catalog.Build(set.Id, set.Files.Values.Select(f => f.File));
-            if (!Session.Context.IsUpToDate(inputs))
-            {
-                set.Phase = SetPhase.Waiting;
-                set.FirstSeenUtc = now;
-                set.TriggerUtc = now;
-                Session.Context.Store.SetState(set.Id, SetStates.Stale, inputs.Profile, "settings changed");
-                n++;
-            }
-        }
+        int n = _life.SettingsChanged(now);
+        Write();
         return n;
     }
 
     /// <summary>Sets that are complete now, as jobs (their stable files only when overdue).</summary>
-    public IEnumerable<SetJob> Ready(DateTime now, double stableSeconds)
+    public List<SetJob> Ready(DateTime now, double stableSeconds)
     {
-        foreach (var set in _sets.Values.Where(s => s.Phase == SetPhase.Waiting && s.RetryAfterUtc <= now).OrderBy(s => s.FirstSeenUtc).ThenBy(s => s.Id, StringComparer.Ordinal))
-        {
-            var stable = set.Files.Values.Where(f => (now - f.StableSinceUtc).TotalSeconds >= stableSeconds).Select(f => f.File).ToList();
-            string profile = Session.Catalog.ProfileFor(set.Id);
-            var completion = Session.Context.Options.Profile(profile).Completion;
-            string marker = completion.ReadyMarker;
-            string? markerFolder = Session.Catalog.MarkerFolder(set.Id);
-            bool hasMarker = marker.Length > 0 && markerFolder is not null && File.Exists(Path.Combine(markerFolder, marker));
-            var snap = new SetSnapshot(stable.Count, set.Files.Count - stable.Count, set.FirstSeenUtc, set.LastChangeUtc, hasMarker);
-            var (decision, why) = SetCompletionPolicy.Decide(completion, snap, now);
-            set.LastWhy = why;
-            if (decision == CompletionDecision.Wait)
-            {
-                continue;
-            }
-            var inputs = Session.Catalog.Build(set.Id, stable);
-            if (decision == CompletionDecision.Complete && Session.Context.IsUpToDate(inputs))
-            {
-                set.Phase = SetPhase.Done; // back to what the last run saw (e.g. a file replaced by an identical copy)
-                Session.Context.Store.SetState(set.Id, SetStates.Done, inputs.Profile);
-                continue;
-            }
-            yield return new SetJob(Index, inputs, decision == CompletionDecision.Overdue);
-        }
+        var jobs = _life.Ready(Index, now, stableSeconds);
+        Write();
+        return jobs;
     }
 
-    /// <summary>How long a deferred set waits before it is offered again (another node's run or an outage usually ends sooner than a lease).</summary>
-    public TimeSpan DeferredRetry { get; init; } = TimeSpan.FromSeconds(5);
+    public void Queued(string setId) => _life.Queued(setId);
 
-    public void Queued(string setId)
-    {
-        var set = _sets[setId];
-        set.Phase = SetPhase.Queued;
-        set.ChangedWhileBusy = false;
-    }
+    public void Running(string setId) => _life.Running(setId);
 
     public void Finished(SetJob job, SetOutcome outcome, DateTime now)
     {
-        if (!_sets.TryGetValue(outcome.SetId, out var set))
-        {
-            return;
-        }
-        set.Phase = outcome.Kind switch
-        {
-            SetOutcomeKind.Done or SetOutcomeKind.Unchanged => SetPhase.Done,
-            SetOutcomeKind.Failed => SetPhase.Failed,
-            _ => SetPhase.Waiting,
-        };
-        if (outcome.Kind == SetOutcomeKind.Changed)
-        {
-            set.LastChangeUtc = now;
-        }
-        if (outcome.Kind == SetOutcomeKind.Deferred)
-        {
-            set.RetryAfterUtc = now + DeferredRetry;
-            set.LastWhy = outcome.Reason ?? "deferred";
-        }
-        if (set.ChangedWhileBusy && set.Phase is SetPhase.Done or SetPhase.Failed)
-        {
-            set.Phase = SetPhase.Waiting;
-            set.FirstSeenUtc = now;
-            Session.Context.Store.SetState(set.Id, SetStates.Stale, Session.Catalog.ProfileFor(set.Id), "inputs changed while the set was processed");
-        }
-        else if (set.Phase == SetPhase.Done && !SameFiles(set, job.Set))
-        {
-            // An overdue run took only the stable files; the others still need a complete run.
-            set.Phase = SetPhase.Waiting;
-            set.FirstSeenUtc = now;
-            Session.Context.Store.SetState(set.Id, SetStates.Stale, job.Set.Profile, "files that were still changing at the maximum wait");
-        }
-        set.ChangedWhileBusy = false;
+        _life.Finished(job, outcome, now);
+        Write();
     }
 
-    private static bool SameFiles(TrackedSet set, SetInputs inputs) =>
-        set.Files.Count == inputs.Files.Count
-        && inputs.Files.All(f => set.Files.TryGetValue(f.Key, out var t) && t.File.Size == f.Size && t.File.MtimeTicks == f.MtimeTicks);
+    /// <summary>Makes the ledger writes the lifecycle decided.</summary>
+    private void Write()
+    {
+        foreach (var note in _life.TakeNotes())
+        {
+            Session.Context.Store.SetState(note.SetId, note.State, note.Profile, note.Reason);
+        }
+    }
+
+    string ISetFacts.ProfileFor(string setId) => Session.Catalog.ProfileFor(setId);
+
+    CompletionSettings ISetFacts.CompletionFor(string profile) => Session.Context.Options.Profile(profile).Completion;
+
+    bool ISetFacts.HasReadyMarker(string setId, string marker) =>
+        Session.Catalog.MarkerFolder(setId) is { } folder && File.Exists(Path.Combine(folder, marker));
+
+    SetInputs ISetFacts.Build(string setId, IEnumerable<InputFile> files) => Session.Catalog.Build(setId, files);
+
+    bool ISetFacts.IsUpToDate(SetInputs inputs) => Session.Context.IsUpToDate(inputs);
 }

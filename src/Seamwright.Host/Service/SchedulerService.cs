@@ -20,7 +20,7 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
             var trackers = runtime.Roots.Select((s, i) => new RootTracker(i, s)).ToList();
             foreach (var t in trackers)
             {
-                var retired = t.Start(DateTime.UtcNow, runtime.Options.Service.StableSeconds);
+                var retired = t.Start(runtime.Time.GetUtcNow().UtcDateTime, runtime.Options.Service.StableSeconds);
                 LogStarted(log, t.Session.Catalog.RootPath, t.Sets.Count, t.Sets.Values.Count(s => s.Phase == SetPhase.Done));
                 Retired(t, retired, runtime.Ops);
             }
@@ -30,7 +30,7 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
             int round = 0;
             while (!stoppingToken.IsCancellationRequested)
             {
-                var now = DateTime.UtcNow;
+                var now = runtime.Time.GetUtcNow().UtcDateTime;
                 var opts = runtime.Options.Service;
                 ops?.Health.Beat(LoopName);
                 try
@@ -163,7 +163,7 @@ internal sealed partial class SchedulerService(ServiceRuntime runtime, IHostAppl
         while (pending.Count > 0 && runtime.Jobs.Writer.TryWrite(pending.Peek()))
         {
             var sent = pending.Dequeue();
-            trackers[sent.Root].Sets[sent.Set.SetId].Phase = SetPhase.Running;
+            trackers[sent.Root].Running(sent.Set.SetId);
         }
     }
 

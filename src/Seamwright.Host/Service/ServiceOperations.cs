@@ -115,7 +115,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         string scratch = Path.Combine(state, ScratchFolder);
         if (Directory.Exists(scratch))
         {
-            foreach (var stale in new DirectoryInfo(scratch).GetFiles().Where(f => f.LastWriteTimeUtc < DateTime.UtcNow.AddHours(-1)))
+            foreach (var stale in new DirectoryInfo(scratch).GetFiles().Where(f => f.LastWriteTimeUtc < Time.GetUtcNow().UtcDateTime.AddHours(-1)))
             {
                 stale.Delete();
             }

@@ -44,6 +44,9 @@ internal sealed class ServiceRuntime
 
     public IReadOnlyList<RootSession> Roots { get; }
 
+    /// <summary>The scheduler's clock (the system clock; a fake one in tests).</summary>
+    public TimeProvider Time { get; init; } = TimeProvider.System;
+
     public SeamwrightOptions Options { get; set; }
 
     public Channel<WatchHint> Hints { get; }

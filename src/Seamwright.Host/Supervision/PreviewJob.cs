@@ -1,6 +1,5 @@
 using System.Text.Json;
 using Seamwright.Pipeline.Loading;
-using Seamwright.Pipeline.Output;
 using Seamwright.Pipeline.Settings;
 
 namespace Seamwright.Host.Supervision;
@@ -8,7 +7,7 @@ namespace Seamwright.Host.Supervision;
 /// <summary>
 /// The worker's job for a preview: open the image in colour through the <see cref="ImageLoader"/>
 /// with the run's limits (sent as JSON), scaled down to the long side asked for, and write its
-/// pixels (<see cref="PreviewPixels"/>) to the file the supervisor names. A file the loader
+/// pixels (<see cref="PreviewPixels"/>) to the new file the supervisor names. A file the loader
 /// rejects is a failed reply with its reason; the worker stays unless the decode ran out of
 /// memory or time.
 /// </summary>
@@ -27,7 +26,12 @@ internal sealed class PreviewJob(long allocationLimitBytes, TimeSpan jobTimeout)
         try
         {
             using var image = loader.LoadColour(request.Path, request.PreviewMaxSide);
-            AtomicFile.Write(request.FeatureOutputPath, stream => PreviewPixels.Write(stream, image));
+            // A hand-off read once after the reply (and deleted by the service whatever happens):
+            // no durability needed, so no flush to disk.
+            using (var stream = new FileStream(request.FeatureOutputPath, FileMode.CreateNew, FileAccess.Write))
+            {
+                PreviewPixels.Write(stream, image);
+            }
             return new WorkerReply(request.Id, true, null, image.Width, image.Height, null, "preview", 0, false);
         }
         catch (ImageLoadException ex)
