@@ -54,14 +54,14 @@ public sealed class ProcessingContext
     /// <summary>The run plan of a set of this profile under the current settings: resolved once at the start of each run.</summary>
     public RunPlan PlanFor(string profile) => RunPlan.Resolve(Options, profile, Engine.Name, AlgorithmVersion);
 
+    /// <summary>The fingerprint a run of this profile would record under the current settings (<see cref="RunPlan.FingerprintOf"/>).</summary>
     public string FingerprintFor(string profile) => Fingerprint(Options, Engine, profile);
 
-    /// <summary>The settings fingerprint of a profile's sets under these settings and engine (what <see cref="FingerprintFor"/> gives, without a context).</summary>
+    /// <summary>The settings fingerprint of a profile's sets under these settings and engine, without a context.</summary>
     public static string Fingerprint(SeamwrightOptions options, IPairEngine engine, string profile)
     {
-        ArgumentNullException.ThrowIfNull(options);
         ArgumentNullException.ThrowIfNull(engine);
-        return SettingsFingerprint.ForSet(options.Profile(profile), options.Limits, engine.Name, AlgorithmVersionOf(engine));
+        return RunPlan.FingerprintOf(options, profile, engine.Name, AlgorithmVersionOf(engine));
     }
 
     /// <summary>True when the ledger says the set's last finished run used these inputs and settings and its manifest exists.</summary>

@@ -37,5 +37,15 @@ public sealed record RunPlan
         };
     }
 
+    /// <summary>
+    /// The settings fingerprint a run of this profile would record under these settings (the one
+    /// formula: <see cref="Resolve"/> and the up-to-date check both use it).
+    /// </summary>
+    public static string FingerprintOf(SeamwrightOptions options, string profileName, string engineName, int algorithmVersion)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        return SettingsFingerprint.ForSet(options.Profile(profileName), options.Limits, engineName, algorithmVersion);
+    }
+
     private static T Copy<T>(T value) => JsonSerializer.Deserialize<T>(JsonSerializer.SerializeToUtf8Bytes(value))!;
 }
