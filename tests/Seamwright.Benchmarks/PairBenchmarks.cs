@@ -12,7 +12,7 @@ namespace Seamwright.Benchmarks;
 [SimpleJob(warmupCount: 2, iterationCount: 5)]
 public class PairBenchmarks
 {
-    private HomogrPair _pair = null!;
+    private BenchmarkPair _pair = null!;
 
     public static IEnumerable<string> Names => HomogrSet.TryLoad()?.Select(p => p.Name) ?? [];
 
@@ -23,7 +23,7 @@ public class PairBenchmarks
     public void Setup()
     {
         Cv2.SetNumThreads(1);
-        _pair = HomogrSet.TryLoad()!.Single(p => p.Name == Pair);
+        _pair = BenchmarkPair.Homogr(HomogrSet.TryLoad()!).Single(p => p.Name == Pair);
     }
 
     [Benchmark(Baseline = true)]

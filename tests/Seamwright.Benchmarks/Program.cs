@@ -23,6 +23,10 @@ internal static class Program
         {
             return FeatureProfile.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "profile-scalespace")
+        {
+            return ScaleSpaceProfile.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "profile-matching")
         {
             return MatchingProfile.Run(args[1..]);
