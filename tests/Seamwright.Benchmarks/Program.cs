@@ -19,6 +19,10 @@ internal static class Program
         {
             return Scale.PairProfile.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "sweep-links")
+        {
+            return Scale.SweepLinks.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "profile-features")
         {
             return FeatureProfile.Run(args[1..]);

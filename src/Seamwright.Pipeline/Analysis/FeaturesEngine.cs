@@ -28,7 +28,7 @@ public sealed class FeaturesEngine : IPairEngine
     public string DescriptorVersion => DescriptorPattern.Version;
 
     /// <summary>Bump when this engine's results change for the same inputs and settings.</summary>
-    public int AlgorithmVersion => 2;
+    public int AlgorithmVersion => 3;
 
     public ImageAnalysis Analyze(string path, Settings.FeatureSettings features, Settings.LimitSettings limits, MemoryBudget budget, CancellationToken cancel)
     {
