@@ -97,8 +97,7 @@ public sealed class FeaturesEngine : IPairEngine
         {
             coarse[i] = BinaryPrimitives.ReadSingleLittleEndian(data[(16 + 4 * i)..]);
         }
-        using var ms = new MemoryStream(data[(16 + 4 * n)..].ToArray());
-        var features = FeatureCacheCodec.Read(ms);
+        var features = FeatureCacheCodec.Read(data[(16 + 4 * n)..]);
         return new ImageAnalysis
         {
             Size = features.FullSize,
