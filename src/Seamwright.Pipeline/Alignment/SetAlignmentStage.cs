@@ -57,7 +57,7 @@ public static class SetAlignmentStage
         open ??= new PreviewLoader(paths, new Settings.LimitSettings(), new Analysis.MemoryBudget(1L << 30)).Open;
         start = System.Diagnostics.Stopwatch.GetTimestamp();
         var visuals = SetVisuals.Build(setName, runId, fingerprint, images, pairs, alignment, open,
-            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel, provenance);
+            new PreviewOptions { MaxLongSide = settings.PreviewMaxSide }, setModel, provenance, model);
         double visualsMs = System.Diagnostics.Stopwatch.GetElapsedTime(start).TotalMilliseconds;
         var manifest = ManifestAlignment.From(alignment, names) with { SetModel = ManifestSetModel.From(setModel) };
         if (setModel.IsRotation)

@@ -20,7 +20,7 @@ public static class SetVisuals
 
     public static SetVisualOutputs Build(string setName, string runId, string fingerprint, IReadOnlyList<AlignedImage> images,
         IReadOnlyList<AlignedPair> pairs, SetAlignment alignment, PreviewImageOpener open, PreviewOptions? options = null,
-        Seamwright.Core.Cameras.SetModelResult? setModel = null, ReportProvenance? provenance = null)
+        Seamwright.Core.Cameras.SetModelResult? setModel = null, ReportProvenance? provenance = null, MotionModel? pairModel = null)
     {
         ArgumentNullException.ThrowIfNull(images);
         ArgumentNullException.ThrowIfNull(pairs);
@@ -83,6 +83,7 @@ public static class SetVisuals
         {
             Verdict = ReportVerdict.Judge(alignment, reportPairs, names, provenance?.LeftOut.Count ?? 0),
             Provenance = provenance,
+            PairModel = pairModel is { } m ? MotionFamily.Of(m).Name : null,
         };
         return new SetVisualOutputs(preview, report, ReportHtml.Render(report));
     }

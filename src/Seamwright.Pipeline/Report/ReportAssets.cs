@@ -16,6 +16,7 @@ header .sub{color:#b9c4c9;font-size:13px}
 .chip{border-radius:3px;padding:2px 9px;font-size:12px;font-weight:600;letter-spacing:.04em;text-transform:uppercase;border:1px solid currentColor}
 .st-accepted{color:var(--ok)}.st-weak{color:var(--weak)}.st-rejected{color:var(--bad)}
 header .chip{background:#f3f0e8}
+header .chip.zero{color:#b9c4c9;background:transparent;border-color:#5d6b73;font-weight:400}
 main{max-width:1280px;margin:0 auto;padding:20px 28px 40px}
 section{background:var(--card);border:1px solid var(--rule);border-radius:4px;margin:18px 0;padding:16px 20px}
 h2{font-size:12px;text-transform:uppercase;letter-spacing:.14em;color:var(--accent);margin:0 0 12px;font-weight:700}
@@ -25,7 +26,7 @@ h2{font-size:12px;text-transform:uppercase;letter-spacing:.14em;color:var(--acce
 .pager{display:flex;gap:10px;align-items:center;margin:0 0 10px;flex-wrap:wrap;font-size:13px}
 .pager input,.pager select,.pager button{font:inherit;padding:2px 8px}
 .warn ul{margin:0;padding-left:18px}
-.top{display:grid;grid-template-columns:minmax(0,2fr) minmax(260px,1fr);gap:18px}
+.top{display:grid;grid-template-columns:minmax(0,3fr) minmax(320px,2fr);gap:18px}
 @media (max-width:900px){.top{grid-template-columns:1fr}}
 .top section{margin:0}
 figure{margin:0}
@@ -34,6 +35,8 @@ figcaption{color:var(--muted);font-size:12px;margin-top:6px}
 dl{display:grid;grid-template-columns:auto 1fr;gap:6px 14px;margin:0}
 dt{color:var(--muted);font-size:13px}
 dd{margin:0;font-family:var(--mono);font-size:13px;word-break:break-word}
+dl .wide{grid-column:1/-1}
+dd.prose{font-family:inherit;margin:-4px 0 4px}
 svg.graph{width:100%;height:auto;background:#fbf9f3;border:1px solid var(--rule)}
 svg.graph line{stroke-linecap:round}
 svg.graph line.hot{stroke:var(--accent);stroke-width:4}

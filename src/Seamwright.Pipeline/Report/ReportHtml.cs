@@ -12,6 +12,9 @@ namespace Seamwright.Pipeline.Report;
 /// </summary>
 public static class ReportHtml
 {
+    /// <summary>Label of the Alignment panel's row naming the model each pair was estimated in.</summary>
+    public const string PairModelLabel = "Pair model";
+
     public static string Render(SetReport report)
     {
         ArgumentNullException.ThrowIfNull(report);
@@ -45,10 +48,26 @@ public static class ReportHtml
             sb.Append("<p>No preview: nothing could be placed.</p>");
         }
         sb.Append("</section><section><h2>Alignment</h2><dl>");
-        sb.Append("<dt>Motion model</dt><dd>").Append(E(report.MotionModel)).Append("</dd>");
-        foreach (var f in report.Facts)
+        // One name per model: the set model (what placed the images, and why) and the pairs' model (what each pair was estimated in).
+        var facts = report.Facts.ToList();
+        if (!facts.Any(f => f.Label == SetModelSummary.SetModelLabel))
         {
-            sb.Append("<dt>").Append(E(f.Label)).Append("</dt><dd>").Append(E(f.Value)).Append("</dd>");
+            facts.Insert(0, new ReportFact(SetModelSummary.SetModelLabel, report.MotionModel));
+        }
+        int after = facts.FindIndex(f => f.Label == SetModelSummary.SetModelLabel) + 1;
+        if (after < facts.Count && facts[after].Label == SetModelSummary.ReasonLabel)
+        {
+            after++;
+        }
+        if (report.PairModel is { } pairModel)
+        {
+            facts.Insert(after, new ReportFact(PairModelLabel, pairModel + " (each pair's estimate)"));
+        }
+        foreach (var f in facts)
+        {
+            string wide = f.Prose ? " class=\"wide\"" : "";
+            sb.Append("<dt").Append(wide).Append('>').Append(E(f.Label)).Append("</dt><dd").Append(f.Prose ? " class=\"wide prose\"" : "").Append('>')
+              .Append(E(f.Value)).Append("</dd>");
         }
         sb.Append("</dl></section></div>\n");
         sb.Append("<section><h2>Pair graph</h2>").Append(PairGraphSvg.Render(report));
@@ -76,9 +95,13 @@ public static class ReportHtml
         sb.Append("<header>").Append(ReportAssets.Mark).Append("<div><h1>").Append(E(report.SetName)).Append("</h1><div class=\"sub\">")
           .Append(F($"{report.Images.Count} images · {report.Pairs.Count} pairs · run ")).Append(E(report.RunId)).Append("</div></div>");
         sb.Append("<div class=\"chips\">")
-          .Append(F($"<span class=\"chip st-accepted\">{accepted} accepted</span><span class=\"chip st-weak\">{weak} weak</span><span class=\"chip st-rejected\">{rejected} rejected</span>"))
+          .Append(CountChip("accepted", accepted)).Append(CountChip("weak", weak)).Append(CountChip("rejected", rejected))
           .Append("</div></header>\n");
     }
+
+    /// <summary>A header count: in its status colour when there is something to count, quiet (class zero) at zero.</summary>
+    private static string CountChip(string status, int count) =>
+        F($"<span class=\"chip st-{status}{(count == 0 ? " zero" : "")}\">{count} {status}</span>");
 
     private static void Table(StringBuilder sb, SetReport report)
     {

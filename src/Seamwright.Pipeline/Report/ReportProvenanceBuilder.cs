@@ -1,4 +1,5 @@
 using System.Globalization;
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Sets;
 using Seamwright.Pipeline.Settings;
@@ -30,6 +31,14 @@ public static class ReportProvenanceBuilder
         return first is null ? set.SetId : first.FullPath[..^first.RootPath.Length].TrimEnd('/', '\\');
     }
 
+    /// <summary>The set-model setting in words (the model chosen is in the Alignment panel).</summary>
+    public static string SetModelSetting(SetModelKind kind) => kind switch
+    {
+        SetModelKind.Auto => "auto (rotation when warranted, else the lowest-freedom planar model)",
+        SetModelKind.Planar => "planar (the pair model)",
+        _ => "rotation",
+    };
+
     /// <summary>The result-shaping settings a reader needs to judge the result, with their values.</summary>
     public static IReadOnlyList<ReportFact> Settings(ProfileSettings p)
     {
@@ -37,7 +46,8 @@ public static class ReportProvenanceBuilder
         string I(double v) => v.ToString("0.###", CultureInfo.InvariantCulture);
         return
         [
-            new("motion model", MotionFamily.Of(p.Estimation.MotionModel).Name),
+            new("pair model", MotionFamily.Of(p.Estimation.MotionModel).Name),
+            new("set model", SetModelSetting(p.Alignment.SetModel)),
             new("threshold", I(p.Estimation.ThresholdPx) + " px"),
             new("seed", p.Estimation.Seed.ToString(CultureInfo.InvariantCulture)),
             new("consensus refinement", p.Estimation.RefineConsensus ? "on" : "off"),

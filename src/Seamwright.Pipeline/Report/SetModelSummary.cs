@@ -6,20 +6,26 @@ namespace Seamwright.Pipeline.Report;
 /// <summary>Report facts and warnings of the set model (rotation sets: focal length, extent, projection, levelling).</summary>
 public static class SetModelSummary
 {
+    /// <summary>Label of the fact naming the model the set was placed in.</summary>
+    public const string SetModelLabel = "Set model";
+
+    /// <summary>Label of the fact saying why that set model.</summary>
+    public const string ReasonLabel = "Chosen because";
+
     public static IReadOnlyList<ReportFact> Facts(SetModelResult? model)
     {
         if (model is null)
         {
             return [];
         }
-        var facts = new List<ReportFact> { new("Set model", $"{model.Model}: {model.Reason}") };
+        var facts = new List<ReportFact> { new(SetModelLabel, model.Model), new(ReasonLabel, model.Reason, Prose: true) };
         if (model.Rotation is { } r && model.Extent is { } e)
         {
             var focals = r.Poses.OfType<CameraPose>().Select(p => p.FocalPx).Distinct().Order().ToArray();
             facts.Add(new("Focal length", string.Join(", ", focals.Select(f => F($"{f:0.##} px")))));
             facts.Add(new("Angular extent", F($"{e.HorizontalDeg:0.#} x {e.VerticalDeg:0.#} degrees (latitude {e.BottomDeg:0.#} to {e.TopDeg:0.#})")));
             facts.Add(new("Suggested projection", F($"{e.Projection.ToString().ToLowerInvariant()}, {e.CanvasWidth} x {e.CanvasHeight} px")));
-            facts.Add(new("Levelling", F($"world turned by {r.LevellingDeg:0.##} degrees so the cameras' horizontal axes lie level")));
+            facts.Add(new("Levelling", F($"world turned by {r.LevellingDeg:0.##} degrees so the cameras' horizontal axes lie level"), Prose: true));
         }
         return facts;
     }

@@ -27,13 +27,16 @@ public sealed record ReportPair(string ImageA, string ImageB, string Status, int
     IReadOnlyList<string> Reasons, string? AlignmentNote, string FeaturePath = FeaturePathWords.Corners);
 
 /// <summary>A labelled figure of the summary (already formatted).</summary>
-public sealed record ReportFact(string Label, string Value);
+/// <param name="Label">What the figure is.</param>
+/// <param name="Value">The figure in words.</param>
+/// <param name="Prose">An explanation in sentences: shown across the whole panel, in the text font, under its label.</param>
+public sealed record ReportFact(string Label, string Value, bool Prose = false);
 
 /// <summary>Everything the report shows, as plain data the service fills.</summary>
 /// <param name="SetName">Name of the set.</param>
 /// <param name="RunId">The run that produced it.</param>
 /// <param name="Fingerprint">The settings fingerprint.</param>
-/// <param name="MotionModel">Name of the motion model.</param>
+/// <param name="MotionModel">Name of the model the set was placed in (the set model when no <see cref="SetReport.Facts"/> entry names one).</param>
 /// <param name="Images">Images in set order.</param>
 /// <param name="Pairs">One row per estimated pair.</param>
 /// <param name="PreviewJpeg">The preview mosaic, or null when none was made.</param>
@@ -52,6 +55,9 @@ public sealed record SetReport(
 {
     /// <summary>The opening verdict in words (null in reports built without one).</summary>
     public VerdictText? Verdict { get; init; }
+
+    /// <summary>The model each pair was estimated in (the profile's estimation model; null when not known).</summary>
+    public string? PairModel { get; init; }
 
     /// <summary>Input folder, time, tool version, settings and left-out files (null when not known).</summary>
     public ReportProvenance? Provenance { get; init; }

@@ -94,6 +94,10 @@ internal sealed class HeadlessChromium : IAsyncDisposable
     /// <summary>Script errors seen so far (exceptions, console errors, error log entries).</summary>
     public IReadOnlyList<string> Errors => [.. _events.Where(IsError).Select(e => e.ToJsonString())];
 
+    /// <summary>Sets the page's viewport in CSS pixels (device scale 1), as a desktop window of that size shows it.</summary>
+    public Task SetViewportAsync(int width, int height) =>
+        SendAsync("Emulation.setDeviceMetricsOverride", new JsonObject { ["width"] = width, ["height"] = height, ["deviceScaleFactor"] = 1, ["mobile"] = false });
+
     /// <summary>Opens the page and waits for its load event.</summary>
     public async Task NavigateAsync(string url)
     {

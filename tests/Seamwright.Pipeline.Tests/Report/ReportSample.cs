@@ -1,4 +1,5 @@
 using Seamwright.Core.Alignment;
+using Seamwright.Core.Cameras;
 using Seamwright.Core.Estimation;
 using Seamwright.Core.Geometry;
 using Seamwright.Pipeline.Preview;
@@ -11,7 +12,9 @@ namespace Seamwright.Pipeline.Tests.Report;
 /// <summary>A report of a real small set: six tiles aligned, a preview, thumbnails, pairs of every status.</summary>
 internal static class ReportSample
 {
-    public static SetReport Build(out SetAlignment alignment)
+    /// <param name="alignment">The sample's alignment.</param>
+    /// <param name="withSetModel">Also choose the set model from the sample's links and put its facts in the report.</param>
+    public static SetReport Build(out SetAlignment alignment, bool withSetModel = false)
     {
         using var scene = new TileScene(3, 2, 400, 300, 300, 220);
         var sizes = scene.Tiles.Select(_ => scene.TileSize).ToList();
@@ -31,7 +34,13 @@ internal static class ReportSample
             l.Status == PairStatus.Rejected ? ["too few inliers: 3 < 8 + 0.3 x 40 (Brown and Lowe, IJCV 2007)"] : [],
             AlignmentSummary.PairNote(result, l.ImageA, l.ImageB))).ToList();
         pairs.Add(new ReportPair(names[1], names[3], "weak", 19, 64, 1.2, 6.5, ["a close runner-up model: repeated pattern?", "<script>alert('x')</script> & co"], null));
-        return new SetReport("estate-map <north>", "run-42", "fp-3f9c0a17", "translation", images, pairs, preview,
-            AlignmentSummary.Facts(result, names), AlignmentSummary.Warnings(result, names));
+        var facts = AlignmentSummary.Facts(result, names);
+        if (withSetModel)
+        {
+            // The set model chosen from the same links, as the alignment stage chooses it: its name and reason lead the panel.
+            var model = SetModelSelector.Align(sizes, new int[sizes.Count], links, MotionModel.Homography, SetModelKind.Auto);
+            facts = [.. SetModelSummary.Facts(model), .. facts];
+        }
+        return new SetReport("estate-map <north>", "run-42", "fp-3f9c0a17", "translation", images, pairs, preview, facts, AlignmentSummary.Warnings(result, names));
     }
 }

@@ -32,6 +32,25 @@ public sealed class ReportVerdictTests
     }
 
     [Fact]
+    public void Report_RealRun_NamesThePairModelAndTheChosenSetModelOnce()
+    {
+        using var dir = new ScratchFolder();
+        TestImages.WriteSet(dir.Sub("in/s"), 3, 1);
+        using var session = Sessions.Open(dir.Sub("in"), dir.Sub("out"), Sessions.Options());
+        new SetProcessor(session.Context).Process(session.Catalog.Discover().Single(), false, CancellationToken.None);
+        string html = File.ReadAllText(dir.Sub("out/s/report.html"));
+        var manifest = System.Text.Json.Nodes.JsonNode.Parse(File.ReadAllText(dir.Sub("out/s/" + OutputLayout.ManifestName)))!;
+        string chosen = manifest["alignment"]?["setModel"]?["model"]?.GetValue<string>() ?? manifest["alignment"]!["motionModel"]!.GetValue<string>();
+
+        // The settings say what was asked (the pairs' model, the set-model setting); the Alignment panel what was chosen.
+        Assert.Contains("pair model homography, set model auto (", html, StringComparison.Ordinal);
+        Assert.DoesNotContain("motion model homography", html, StringComparison.OrdinalIgnoreCase);
+        Assert.Single(System.Text.RegularExpressions.Regex.Matches(html, "<dt>Set model</dt>"));
+        Assert.Contains("<dt>Set model</dt><dd>" + chosen + "</dd>", html, StringComparison.Ordinal);
+        Assert.Contains("<dt>Pair model</dt><dd>homography (each pair&#39;s estimate)</dd>", html, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void Verdict_NothingPlaced_NotUsableAndNoPlaneClaimed()
     {
         var sizes = Enumerable.Range(0, 5).Select(_ => new Seamwright.Core.Geometry.ImageSize(400, 300)).ToList();
