@@ -124,7 +124,7 @@ internal static class WatchCommand
         var observer = new ServiceObserver(Log.Logger, ops.Metrics);
         foreach (var root in options.Roots)
         {
-            var session = RootSession.Open(root, options, ops.EngineFor(root, engine, supervisionLog), budget, slots, observer);
+            var session = RootSession.Open(root, options, ops.EngineFor(root, options, engine, supervisionLog), budget, slots, observer);
             session.Context.Review = new RigBaselineReview(loggerFactory.CreateLogger("Seamwright.RigBaseline"));
             sessions.Add(session);
             OneShot.Announce(session, Log.Logger);

@@ -23,7 +23,8 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
     public const string ScratchFolder = "worker-scratch";
     public const string LedgerFile = "decode-attempts.db";
 
-    private readonly List<SqliteQuarantineLedger> _ledgers = [];
+    private readonly List<IQuarantineLedger> _ledgers = [];
+    private readonly Dictionary<IQuarantineLedger, IReadOnlyList<string>> _lastQuarantined = [];
 
     public ServiceOperations(IConfiguration configuration, TimeProvider time)
     {
@@ -89,20 +90,36 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
     {
         lock (_ledgers)
         {
-            return _ledgers.SelectMany(l => l.ListQuarantined()).Select(q => $"{q.File.Path}: {q.Reason}").ToList();
+            var all = new List<string>();
+            foreach (var ledger in _ledgers)
+            {
+                try
+                {
+                    _lastQuarantined[ledger] = [.. ledger.ListQuarantined().Select(q => $"{q.File.Path}: {q.Reason}")];
+                }
+                catch (System.Data.Common.DbException)
+                {
+                    // The shared ledger is unreachable (health says so): the last list read stands.
+                }
+                all.AddRange(_lastQuarantined.GetValueOrDefault(ledger, []));
+            }
+            return all;
         }
     }
 
     /// <summary>The engine a root uses: analysis in supervised workers (when enabled) with this root's quarantine ledger.</summary>
-    public IPairEngine EngineFor(RootSettings root, IPairEngine engine, ILogger logger)
+    public IPairEngine EngineFor(RootSettings root, SeamwrightOptions options, IPairEngine engine, ILogger logger)
     {
+        ArgumentNullException.ThrowIfNull(root);
+        ArgumentNullException.ThrowIfNull(options);
         if (Pool is null)
         {
             return engine;
         }
         string state = Path.Combine(root.EffectiveOutput, StateStore.StateFolder);
         Directory.CreateDirectory(state);
-        var ledger = new SqliteQuarantineLedger(Path.Combine(state, LedgerFile));
+        // SQLite beside the state, or the shared PostgreSQL table: a file that killed a worker on one node is not tried on the next.
+        var ledger = QuarantineLedgers.Open(root.EffectiveOutput, root.Path, options.State, options.Service.EffectiveNodeName, LedgerFile);
         lock (_ledgers)
         {
             _ledgers.Add(ledger);
@@ -177,7 +194,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         Meters?.Dispose();
         lock (_ledgers)
         {
-            _ledgers.ForEach(l => l.Dispose());
+            _ledgers.ForEach(l => (l as IDisposable)?.Dispose());
             _ledgers.Clear();
         }
     }
