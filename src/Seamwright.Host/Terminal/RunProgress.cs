@@ -94,9 +94,6 @@ internal sealed class RunProgress(ILogger log, bool interactive) : IProcessingOb
     public void PairsCounted(string setId, int estimated, int reused) =>
         log.Information("Set {Set}: {Estimated} pairs estimated, {Reused} reused from the pair cache", setId, estimated, reused);
 
-    public void FeaturesRead(string setId, int reads, int images) =>
-        log.Debug("Set {Set}: {Reads} feature-cache reads for the pairs of {Images} images", setId, reads, images);
-
     public void AlignmentTimed(string setId, AlignmentTimes times)
     {
         ArgumentNullException.ThrowIfNull(times);

@@ -97,7 +97,8 @@ public sealed class FeaturesEngine : IPairEngine
         {
             coarse[i] = BinaryPrimitives.ReadSingleLittleEndian(data[(16 + 4 * i)..]);
         }
-        var features = FeatureCacheCodec.Read(data[(16 + 4 * n)..]);
+        using var ms = new MemoryStream(data[(16 + 4 * n)..].ToArray());
+        var features = FeatureCacheCodec.Read(ms);
         return new ImageAnalysis
         {
             Size = features.FullSize,

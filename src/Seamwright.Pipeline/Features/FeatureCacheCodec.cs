@@ -1,4 +1,3 @@
-using System.Buffers.Binary;
 using System.Text;
 using Seamwright.Core.Features;
 using Seamwright.Core.Geometry;
@@ -72,67 +71,69 @@ public static class FeatureCacheCodec
         ArgumentNullException.ThrowIfNull(stream);
         using var buffer = new MemoryStream();
         stream.CopyTo(buffer);
-        return Read(buffer.GetBuffer().AsSpan(0, (int)buffer.Length));
-    }
-
-    /// <summary>
-    /// Reads an entry straight from its bytes (no copy of the entry: only the arrays the features
-    /// keep are allocated, which matters when a set's pairs read thousands of entries).
-    /// </summary>
-    public static ImageFeatures Read(ReadOnlySpan<byte> bytes)
-    {
+        var bytes = buffer.GetBuffer().AsSpan(0, (int)buffer.Length);
         if (bytes.Length < Magic.Length + 12 || !bytes[..Magic.Length].SequenceEqual(Magic))
         {
             throw new InvalidDataException("Not a Seamwright feature cache entry (bad magic).");
         }
-        ulong stored = BinaryPrimitives.ReadUInt64LittleEndian(bytes[^8..]);
+        ulong stored = BitConverter.ToUInt64(bytes[^8..]);
+        if (!BitConverter.IsLittleEndian)
+        {
+            stored = System.Buffers.Binary.BinaryPrimitives.ReverseEndianness(stored);
+        }
         if (Fnv1a(bytes[..^8]) != stored)
         {
             throw new InvalidDataException("Feature cache entry is damaged (checksum mismatch).");
         }
-        var r = new SpanReader(bytes[..^8], Magic.Length);
-        int version = r.Int32();
-        if (version != FormatVersion)
+        buffer.Position = Magic.Length;
+        try
         {
-            throw new InvalidDataException($"Feature cache format {version} is not supported (expected {FormatVersion}).");
+            using var r = new BinaryReader(buffer, Encoding.UTF8, leaveOpen: true);
+            int version = r.ReadInt32();
+            if (version != FormatVersion)
+            {
+                throw new InvalidDataException($"Feature cache format {version} is not supported (expected {FormatVersion}).");
+            }
+            string pattern = r.ReadString();
+            string fingerprint = r.ReadString();
+            var full = new ImageSize(r.ReadInt32(), r.ReadInt32());
+            var working = new ImageSize(r.ReadInt32(), r.ReadInt32());
+            double scale = r.ReadDouble();
+            int count = r.ReadInt32();
+            int radius = r.ReadInt32();
+            if (count < 0 || count > MaxKeypoints || radius < 0 || radius > MaxPatchRadius)
+            {
+                throw new InvalidDataException($"Feature cache entry has implausible counts ({count} keypoints, patch radius {radius}).");
+            }
+            var keypoints = new Keypoint[count];
+            for (int i = 0; i < count; i++)
+            {
+                keypoints[i] = new Keypoint(r.ReadSingle(), r.ReadSingle(), r.ReadSingle(), r.ReadSingle(), r.ReadSingle(), r.ReadInt32());
+            }
+            var descriptors = new Descriptor256[count];
+            for (int i = 0; i < count; i++)
+            {
+                descriptors[i] = new Descriptor256(r.ReadUInt64(), r.ReadUInt64(), r.ReadUInt64(), r.ReadUInt64());
+            }
+            int side = 2 * radius + 1;
+            long patchBytes = (long)count * side * side;
+            if (patchBytes > buffer.Length - 8 - buffer.Position)
+            {
+                throw new InvalidDataException("Feature cache entry has the wrong length.");
+            }
+            var patches = r.ReadBytes((int)patchBytes);
+            var (compact, mask) = ReadCompact(r, full);
+            if (buffer.Position != buffer.Length - 8)
+            {
+                throw new InvalidDataException("Feature cache entry has the wrong length.");
+            }
+            return new ImageFeatures(full, working, scale, keypoints, descriptors, radius, patches, pattern, fingerprint, compact, mask);
         }
-        string pattern = r.String();
-        string fingerprint = r.String();
-        var full = new ImageSize(r.Int32(), r.Int32());
-        var working = new ImageSize(r.Int32(), r.Int32());
-        double scale = r.Double();
-        int count = r.Int32();
-        int radius = r.Int32();
-        if (count < 0 || count > MaxKeypoints || radius < 0 || radius > MaxPatchRadius)
+        catch (EndOfStreamException e)
         {
-            throw new InvalidDataException($"Feature cache entry has implausible counts ({count} keypoints, patch radius {radius}).");
+            throw new InvalidDataException("Feature cache entry is truncated.", e);
         }
-        int side = 2 * radius + 1;
-        if ((long)count * (KeypointBytes + DescriptorBytes + (long)side * side) > r.Remaining)
-        {
-            throw new InvalidDataException("Feature cache entry has the wrong length.");
-        }
-        var keypoints = new Keypoint[count];
-        for (int i = 0; i < count; i++)
-        {
-            keypoints[i] = new Keypoint(r.Single(), r.Single(), r.Single(), r.Single(), r.Single(), r.Int32());
-        }
-        var descriptors = new Descriptor256[count];
-        for (int i = 0; i < count; i++)
-        {
-            descriptors[i] = new Descriptor256(r.UInt64(), r.UInt64(), r.UInt64(), r.UInt64());
-        }
-        var patches = r.Bytes(count * side * side);
-        var (compact, mask) = ReadCompact(ref r, full);
-        if (r.Remaining != 0)
-        {
-            throw new InvalidDataException("Feature cache entry has the wrong length.");
-        }
-        return new ImageFeatures(full, working, scale, keypoints, descriptors, radius, patches, pattern, fingerprint, compact, mask);
     }
-
-    private const int KeypointBytes = 6 * 4;
-    private const int DescriptorBytes = 4 * 8;
 
     private static void WriteCompact(BinaryWriter w, ImageFeatures features)
     {
@@ -152,9 +153,9 @@ public static class FeatureCacheCodec
         }
     }
 
-    private static (ScaledImage?, GrayImage?) ReadCompact(ref SpanReader r, ImageSize full)
+    private static (ScaledImage?, GrayImage?) ReadCompact(BinaryReader r, ImageSize full)
     {
-        byte flags = r.Byte();
+        byte flags = r.ReadByte();
         if (flags is not (0 or 1 or 3))
         {
             throw new InvalidDataException($"Feature cache entry has unknown compact-copy flags ({flags}).");
@@ -163,68 +164,22 @@ public static class FeatureCacheCodec
         {
             return (null, null);
         }
-        int width = r.Int32(), height = r.Int32();
-        double scale = r.Double();
+        int width = r.ReadInt32(), height = r.ReadInt32();
+        double scale = r.ReadDouble();
         if (width < 1 || height < 1 || width > full.Width || height > full.Height || !double.IsFinite(scale) || scale < 1)
         {
             throw new InvalidDataException($"Feature cache entry has an implausible compact copy ({width} x {height}, scale {scale}).");
         }
         int pixels = width * height;
-        var image = new GrayImage(width, height, r.Bytes(pixels));
-        var mask = (flags & 2) != 0 ? new GrayImage(width, height, r.Bytes(pixels)) : null;
+        var image = new GrayImage(width, height, ReadExactly(r, pixels));
+        var mask = (flags & 2) != 0 ? new GrayImage(width, height, ReadExactly(r, pixels)) : null;
         return (new ScaledImage(image, scale), mask);
     }
 
-    /// <summary>Little-endian fields of an entry in the layout <see cref="BinaryWriter"/> wrote them; running past the end is a truncated entry.</summary>
-    private ref struct SpanReader(ReadOnlySpan<byte> data, int position)
+    private static byte[] ReadExactly(BinaryReader r, int count)
     {
-        private readonly ReadOnlySpan<byte> _data = data;
-        private int _at = position;
-
-        public readonly int Remaining => _data.Length - _at;
-
-        private ReadOnlySpan<byte> Take(int n)
-        {
-            if (n < 0 || n > Remaining)
-            {
-                throw new InvalidDataException("Feature cache entry is truncated.");
-            }
-            var s = _data.Slice(_at, n);
-            _at += n;
-            return s;
-        }
-
-        public byte Byte() => Take(1)[0];
-
-        public int Int32() => BinaryPrimitives.ReadInt32LittleEndian(Take(4));
-
-        public float Single() => BinaryPrimitives.ReadSingleLittleEndian(Take(4));
-
-        public double Double() => BinaryPrimitives.ReadDoubleLittleEndian(Take(8));
-
-        public ulong UInt64() => BinaryPrimitives.ReadUInt64LittleEndian(Take(8));
-
-        public byte[] Bytes(int n) => Take(n).ToArray();
-
-        /// <summary>A string as <see cref="BinaryWriter.Write(string)"/> writes it: 7-bit encoded byte length, then UTF-8.</summary>
-        public string String()
-        {
-            int length = 0;
-            for (int shift = 0; ; shift += 7)
-            {
-                if (shift > 28)
-                {
-                    throw new InvalidDataException("Feature cache entry has a damaged string length.");
-                }
-                byte b = Byte();
-                length |= (b & 0x7F) << shift;
-                if ((b & 0x80) == 0)
-                {
-                    break;
-                }
-            }
-            return Encoding.UTF8.GetString(Take(length));
-        }
+        var bytes = r.ReadBytes(count);
+        return bytes.Length == count ? bytes : throw new EndOfStreamException();
     }
 
     /// <summary>FNV-1a, 64-bit (Fowler, Noll, Vo); also the checksum of <c>Processing/ImageSummaryCodec</c>.</summary>

@@ -28,40 +28,18 @@ public sealed class FeatureCache(string outputRoot, IPairEngine engine)
         {
             return false;
         }
-        byte[]? data = null;
         try
         {
-            using var fs = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, bufferSize: 1);
-            long length = fs.Length;
-            if (length > Array.MaxLength)
-            {
-                return false;
-            }
-            data = EntryBuffers.Rent((int)length);
-            fs.ReadExactly(data, 0, (int)length);
-            analysis = engine.Decode(data.AsSpan(0, (int)length));
-            bytes = length;
+            byte[] data = File.ReadAllBytes(path);
+            analysis = engine.Decode(data);
+            bytes = data.Length;
             return true;
         }
-        catch (Exception e) when (e is InvalidDataException or IOException or ArgumentException or IndexOutOfRangeException or UnauthorizedAccessException)
+        catch (Exception e) when (e is InvalidDataException or IOException or ArgumentException or IndexOutOfRangeException)
         {
             return false;
         }
-        finally
-        {
-            if (data is not null)
-            {
-                EntryBuffers.Return(data);
-            }
-        }
     }
-
-    /// <summary>
-    /// Read buffers for entries, reused: a pair stage reads thousands of entries of a few MB each,
-    /// and a fresh large-object array per read was garbage the GC collects only in full collections
-    /// (peak RSS grew with it). Judgement: 4 buffers per size class, up to 64 MB; larger entries are not pooled.
-    /// </summary>
-    private static readonly System.Buffers.ArrayPool<byte> EntryBuffers = System.Buffers.ArrayPool<byte>.Create(64 << 20, 4);
 
     /// <summary>
     /// The image's size, coarse signature and capture time without its features (an analysis with

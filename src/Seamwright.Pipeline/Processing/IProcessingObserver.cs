@@ -18,9 +18,6 @@ public interface IProcessingObserver
     /// <summary>After the pairs: how many were estimated and how many came from the pair-result cache.</summary>
     void PairsCounted(string setId, int estimated, int reused) { }
 
-    /// <summary>After a pass of the pairs: how many feature-cache entries it read (an image whose features were dropped from the bounded memory and needed again is read again).</summary>
-    void FeaturesRead(string setId, int reads, int images) { }
-
     /// <summary>After the alignment stage: where the set's alignment time went.</summary>
     void AlignmentTimed(string setId, AlignmentTimes times) { }
 

@@ -1,4 +1,3 @@
-using System.Collections.Concurrent;
 using System.Diagnostics;
 using Seamwright.Core.Estimation;
 using Seamwright.Pipeline.Analysis;
@@ -46,11 +45,7 @@ public static class PairRunner
         var features = new FeatureLru((long)runPlan.FeatureMemoryMegabytes << 20,
             hash => LoadFeatures(ctx, runPlan, featureFp, hash, pathOf[hash], cancel));
         var results = new PairRun[plan.Count];
-        // Workers take the pairs in plan order, one at a time, so they work on neighbouring pairs and share
-        // the features they need (Parallel.For would start each worker in its own part of the plan and
-        // double the images in use, more than the feature budget holds for a wide grid).
-        var inOrder = Partitioner.Create(Enumerable.Range(0, plan.Count), EnumerablePartitionerOptions.NoBuffering);
-        Parallel.ForEach(inOrder, new ParallelOptions { MaxDegreeOfParallelism = runPlan.MaxParallelJobs, CancellationToken = cancel }, k =>
+        Parallel.For(0, plan.Count, new ParallelOptions { MaxDegreeOfParallelism = runPlan.MaxParallelJobs, CancellationToken = cancel }, k =>
         {
             var (a, b) = (plan[k].A, plan[k].B);
             ctx.JobSlots.Wait(cancel);
@@ -70,7 +65,6 @@ public static class PairRunner
         });
         cancel.ThrowIfCancellationRequested();
         int reused = results.Count(r => r.Reused);
-        ctx.Observer.FeaturesRead(setId, features.Loads, images.Count);
         if (secondLook)
         {
             ctx.Observer.SecondLooks(setId, results.Length - reused, reused, results.Count(r => r.Analysis.Estimate.FeaturePath == FeaturePath.ScaleSpace));

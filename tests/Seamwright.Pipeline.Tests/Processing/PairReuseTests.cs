@@ -202,18 +202,14 @@ public sealed partial class PairReuseTests
         Assert.True(outcome.Kind == SetOutcomeKind.Done, outcome.Reason);
     }
 
-    private static (RootSession, CountingEngine) Open(string input, string output, int featureMegabytes = 256, int workers = 2, ulong? seed = null, IProcessingObserver? observer = null)
+    private static (RootSession, CountingEngine) Open(string input, string output, int featureMegabytes = 256, int workers = 2)
     {
         var options = new SeamwrightOptions();
         options.Profiles["default"] = new ProfileSettings();
-        if (seed is ulong s)
-        {
-            options.Profiles["default"].Estimation.Seed = s;
-        }
         options.Service.FeatureMemoryMegabytes = featureMegabytes;
         options.Service.MaxParallelJobs = workers;
         var engine = new CountingEngine(new FeaturesEngine());
-        return (RootSession.Open(options.RootFor(input, output), options, engine, new MemoryBudget(256L << 20), new SemaphoreSlim(workers), observer ?? NullObserver.Instance), engine);
+        return (RootSession.Open(options.RootFor(input, output), options, engine, new MemoryBudget(256L << 20), new SemaphoreSlim(workers), NullObserver.Instance), engine);
     }
 
     private static string Name(int row, int col) => $"tile_r{row + 1}_c{col + 1}.png";
