@@ -19,25 +19,8 @@ public sealed partial class ImageLoader
         ArgumentOutOfRangeException.ThrowIfLessThan(maxLongSide, 1);
         using var handle = Open(path);
         var header = Probe(path, handle, out _);
-        using var cancel = new CancellationTokenSource();
-        var task = Task.Run(() => DecodeColour(path, handle, header, maxLongSide, cancel.Token), CancellationToken.None);
-        bool finished;
-        try
-        {
-            finished = task.Wait(Limits.DecodeTimeout);
-        }
-        catch (AggregateException e) when (e.InnerException is not null)
-        {
-            throw e.InnerException is ImageLoadException le ? le : Classify(path, e.InnerException, "decoding");
-        }
-        if (!finished)
-        {
-            cancel.Cancel();
-            // The abandoned decode disposes its own image when it ends.
-            _ = task.ContinueWith(t => t.Result.Dispose(), CancellationToken.None, TaskContinuationOptions.OnlyOnRanToCompletion, TaskScheduler.Default);
-            throw new ImageLoadException(path, ImageLoadFailure.Timeout, $"decoding took longer than {Limits.DecodeTimeout.TotalSeconds:0.#} s");
-        }
-        return task.Result;
+        // The abandoned decode of a time-out disposes its own image when it ends.
+        return WithTimeout(path, token => DecodeColour(path, handle, header, maxLongSide, token), image => image.Dispose());
     }
 
     private Image<Rgb24> DecodeColour(string path, SafeFileHandle handle, ImageHeader header, int maxLongSide, CancellationToken token)

@@ -114,8 +114,18 @@ public sealed partial class ImageLoader
 
     private GrayImage DecodeWithTimeout(string path, SafeFileHandle handle, ImageHeader header, out StretchRange? stretch)
     {
+        (var image, stretch) = WithTimeout(path, token => Decode(path, handle, header, token));
+        return image;
+    }
+
+    /// <summary>
+    /// Runs one decode under <see cref="LoadLimits.DecodeTimeout"/>: its failures classified, a time-out
+    /// cancels it and throws (the decode's result, should it still come, is given to <paramref name="abandon"/>).
+    /// </summary>
+    private T WithTimeout<T>(string path, Func<CancellationToken, T> decode, Action<T>? abandon = null)
+    {
         using var cancel = new CancellationTokenSource();
-        var task = Task.Run(() => Decode(path, handle, header, cancel.Token), CancellationToken.None);
+        var task = Task.Run(() => decode(cancel.Token), CancellationToken.None);
         bool finished;
         try
         {
@@ -128,10 +138,13 @@ public sealed partial class ImageLoader
         if (!finished)
         {
             cancel.Cancel();
+            if (abandon is not null)
+            {
+                _ = task.ContinueWith(t => abandon(t.Result), CancellationToken.None, TaskContinuationOptions.OnlyOnRanToCompletion, TaskScheduler.Default);
+            }
             throw new ImageLoadException(path, ImageLoadFailure.Timeout, $"decoding took longer than {Limits.DecodeTimeout.TotalSeconds:0.#} s");
         }
-        (var image, stretch) = task.Result;
-        return image;
+        return task.Result;
     }
 
     private (GrayImage Image, StretchRange? Stretch) Decode(string path, SafeFileHandle handle, ImageHeader header, CancellationToken token)
