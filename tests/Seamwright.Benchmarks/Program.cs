@@ -15,6 +15,10 @@ internal static class Program
         {
             return Scale.ScaleBenchmark.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "shoots")
+        {
+            return Scale.ShootsBenchmark.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "profile-pairs")
         {
             return Scale.PairProfile.Run(args[1..]);

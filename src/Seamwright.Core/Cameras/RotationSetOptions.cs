@@ -11,6 +11,9 @@ public enum DistortionTerms
 
     /// <summary>k1 and k2.</summary>
     K1K2,
+
+    /// <summary>k1 when it explains the tie points better than no distortion (<see cref="DistortionChoice"/>), else none.</summary>
+    Auto,
 }
 
 /// <summary>Settings of the camera-rotation set model. Defaults are common practice unless a source is named.</summary>
@@ -19,8 +22,8 @@ public sealed record RotationSetOptions
     /// <summary>One focal length per image instead of one per camera.</summary>
     public bool FocalPerImage { get; init; }
 
-    /// <summary>Radial distortion terms estimated per camera (default none).</summary>
-    public DistortionTerms Distortion { get; init; } = DistortionTerms.None;
+    /// <summary>Radial distortion terms estimated per camera (default <see cref="DistortionTerms.Auto"/>).</summary>
+    public DistortionTerms Distortion { get; init; } = DistortionTerms.Auto;
 
     /// <summary>Scale of the Cauchy loss in pixels (as the planar joint refinement).</summary>
     public double RobustScalePx { get; init; } = 2;

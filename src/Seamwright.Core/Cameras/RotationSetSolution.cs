@@ -68,4 +68,7 @@ public sealed record RotationSetSolution(
     double LevellingDeg, string[] FocalSources)
 {
     public int PlacedCount => Poses.Count(p => p is not null);
+
+    /// <summary>Under <see cref="DistortionTerms.Auto"/>, which lens model was kept and why ("" otherwise).</summary>
+    public string DistortionReason { get; init; } = "";
 }

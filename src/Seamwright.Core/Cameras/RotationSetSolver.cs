@@ -29,6 +29,12 @@ public static class RotationSetSolver
         ArgumentNullException.ThrowIfNull(links);
         options ??= new RotationSetOptions();
         options.Validate();
+        if (options.Distortion == DistortionTerms.Auto)
+        {
+            var plain = Solve(sizes, cameraOf, links, options with { Distortion = DistortionTerms.None }, givenFocal, includeWeak);
+            var withK1 = Solve(sizes, cameraOf, links, options with { Distortion = DistortionTerms.K1 }, givenFocal, includeWeak);
+            return DistortionChoice.Prefer(plain, withK1, cameraOf.Count == 0 ? 1 : cameraOf.Max() + 1);
+        }
         int n = sizes.Count;
         if (cameraOf.Count != n || cameraOf.Any(c => c < 0))
         {

@@ -88,7 +88,8 @@ public static class SetModelSelector
                 choice, null, null, none);
         }
         var (alignment, offPlane) = RotationPlacement.ToSetAlignment(sizes, rotation);
-        return new SetModelResult(alignment, "rotation", why, choice, rotation, extent, offPlane);
+        string lens = rotation.DistortionReason.Length > 0 ? "; " + rotation.DistortionReason : "";
+        return new SetModelResult(alignment, "rotation", why + lens, choice, rotation, extent, offPlane);
     }
 
     /// <summary>Null when the pairs do not look like a rotating camera's; otherwise the evidence in words.</summary>

@@ -24,8 +24,8 @@ public sealed class AlignmentSettings
     /// <summary>Rotation sets: one focal length per image instead of one per camera.</summary>
     public bool FocalPerImage { get; set; }
 
-    /// <summary>Rotation sets: radial distortion terms estimated per camera (None, K1, K1K2).</summary>
-    public DistortionTerms Distortion { get; set; } = DistortionTerms.None;
+    /// <summary>Rotation sets: radial distortion terms estimated per camera (Auto: k1 when it explains the tie points better; None, K1, K1K2).</summary>
+    public DistortionTerms Distortion { get; set; } = DistortionTerms.Auto;
 
     /// <summary>Longest side of the preview mosaic, px (64..8192).</summary>
     public int PreviewMaxSide { get; set; } = 1600;

@@ -67,6 +67,28 @@ public class RotationSetSolverTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void Solve_BarrelPanDefaultOptions_AutomaticDistortionKeepsK1()
+    {
+        var rig = RotationRig.BarrelPan();
+        var solution = SolveAndReport(rig, new RotationSetOptions(), "150 degree pan, k1 -0.1, automatic distortion");
+        AssertTargets(rig, solution);
+        Assert.All(solution.Poses, p => Assert.True(Math.Abs(p!.Distortion.K1 - rig.Lens.K1) <= 0.01, $"k1 {p.Distortion.K1}"));
+        Assert.StartsWith("radial distortion k1 estimated", solution.DistortionReason, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Solve_FullTurnDefaultOptions_AutomaticDistortionKeepsThePlainSolution()
+    {
+        var rig = RotationRig.FullTurn();
+        var links = rig.Links(0.3, 7);
+        var auto = RotationSetSolver.Solve(rig.Sizes, rig.OneCamera, links, new RotationSetOptions());
+        var plain = RotationSetSolver.Solve(rig.Sizes, rig.OneCamera, links, new RotationSetOptions { Distortion = DistortionTerms.None });
+        output.WriteLine(auto.DistortionReason);
+        Assert.StartsWith("no lens distortion", auto.DistortionReason, StringComparison.Ordinal);
+        Assert.Equal(plain.Poses, auto.Poses);
+    }
+
+    [Fact]
     public void Solve_ZenithFrame_Placed()
     {
         var rig = RotationRig.WithZenith();
