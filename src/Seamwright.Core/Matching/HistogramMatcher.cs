@@ -1,4 +1,3 @@
-using System.Numerics;
 using Seamwright.Core.Features.ScaleSpace;
 
 namespace Seamwright.Core.Matching;
@@ -7,14 +6,15 @@ namespace Seamwright.Core.Matching;
 /// Brute-force nearest neighbours of gradient-histogram descriptors by Euclidean distance, with
 /// Lowe's ratio test (IJCV 2004, section 7.1) and the mutual check. The second-nearest neighbour is
 /// the nearest one at another position, so one blob described in two directions does not make its
-/// own match ambiguous. Distances are squared and exact (integer descriptors, sums below 2^24 in
-/// single precision), so the result does not depend on the vector width of the machine.
+/// own match ambiguous. Distances are squared and exact (integer descriptors and integer dot products,
+/// <see cref="HistogramDots"/>), so the result does not depend on the vector width of the machine.
 /// </summary>
 public static class HistogramMatcher
 {
-    private const int Length = GradientHistogramDescriptor.Length;
+    public static MatchResult Match(ScaleSpaceFeatureSet a, ScaleSpaceFeatureSet b, MatchOptions options) =>
+        Match(a, b, options, HistogramDots.Path.Best);
 
-    public static MatchResult Match(ScaleSpaceFeatureSet a, ScaleSpaceFeatureSet b, MatchOptions options)
+    internal static MatchResult Match(ScaleSpaceFeatureSet a, ScaleSpaceFeatureSet b, MatchOptions options, HistogramDots.Path path)
     {
         ArgumentNullException.ThrowIfNull(a);
         ArgumentNullException.ThrowIfNull(b);
@@ -23,8 +23,9 @@ public static class HistogramMatcher
         {
             return new MatchResult([], 0);
         }
-        var (fa, na) = AsFloats(a);
-        var (fb, nb) = AsFloats(b);
+        var (fa, na) = HistogramDots.Widen(a);
+        var (fb, nb) = HistogramDots.Widen(b);
+        var dots = new int[b.Count];
         var bestA = new int[b.Count];
         var bestDistA = new long[b.Count];
         Array.Fill(bestA, -1);
@@ -33,7 +34,8 @@ public static class HistogramMatcher
         double ratio2 = options.MaxRatio * options.MaxRatio;
         for (int i = 0; i < a.Count; i++)
         {
-            forward[i] = Nearest(fa, na, i, fb, nb, b, bestA, bestDistA);
+            HistogramDots.Row(fa, i, fb, dots, path);
+            forward[i] = Nearest(dots, na[i], i, nb, b, bestA, bestDistA);
         }
         var matches = new List<FeatureMatch>();
         int ambiguous = 0;
@@ -59,14 +61,13 @@ public static class HistogramMatcher
         return new MatchResult(sorted, ambiguous);
     }
 
-    private static (int, long, long) Nearest(float[] fa, long[] na, int i, float[] fb, long[] nb, ScaleSpaceFeatureSet b, int[] bestA, long[] bestDistA)
+    private static (int, long, long) Nearest(ReadOnlySpan<int> dots, long na, int i, int[] nb, ScaleSpaceFeatureSet b, int[] bestA, long[] bestDistA)
     {
-        var da = fa.AsSpan(i * Length, Length);
         int best = -1;
         long d1 = long.MaxValue, d2 = long.MaxValue;
         for (int j = 0; j < nb.Length; j++)
         {
-            long d = na[i] + nb[j] - 2 * (long)Dot(da, fb.AsSpan(j * Length, Length));
+            long d = na + nb[j] - 2 * (long)dots[j];
             if (d < bestDistA[j] || (d == bestDistA[j] && i < bestA[j]))
             {
                 bestDistA[j] = d;
@@ -94,39 +95,5 @@ public static class HistogramMatcher
         var a = set.Keypoints[p];
         var b = set.Keypoints[q];
         return Math.Abs(a.X - b.X) < 0.5f && Math.Abs(a.Y - b.Y) < 0.5f && Math.Abs(a.Sigma - b.Sigma) < 0.01f * a.Sigma;
-    }
-
-    private static float Dot(ReadOnlySpan<float> x, ReadOnlySpan<float> y)
-    {
-        var acc = Vector<float>.Zero;
-        int k = 0;
-        for (; k <= Length - Vector<float>.Count; k += Vector<float>.Count)
-        {
-            acc += new Vector<float>(x[k..]) * new Vector<float>(y[k..]);
-        }
-        float sum = Vector.Sum(acc);
-        for (; k < Length; k++)
-        {
-            sum += x[k] * y[k];
-        }
-        return sum;
-    }
-
-    private static (float[] Values, long[] SquaredNorms) AsFloats(ScaleSpaceFeatureSet set)
-    {
-        var values = new float[set.Descriptors.Length];
-        var norms = new long[set.Count];
-        for (int i = 0; i < set.Count; i++)
-        {
-            long n = 0;
-            for (int k = 0; k < Length; k++)
-            {
-                byte v = set.Descriptors[i * Length + k];
-                values[i * Length + k] = v;
-                n += v * v;
-            }
-            norms[i] = n;
-        }
-        return (values, norms);
     }
 }
