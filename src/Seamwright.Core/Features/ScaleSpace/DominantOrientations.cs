@@ -11,9 +11,10 @@ public static class DominantOrientations
     private const int Bins = 36;
     private const double PeakRatio = 0.8;
 
-    public static int Find(FloatPlane image, float x, float y, double sigma, Span<float> angles)
+    public static int Find(GradientDirections directions, float x, float y, double sigma, Span<float> angles)
     {
-        ArgumentNullException.ThrowIfNull(image);
+        ArgumentNullException.ThrowIfNull(directions);
+        var image = directions.Plane;
         Span<double> hist = stackalloc double[Bins];
         hist.Clear();
         int cx = (int)MathF.Round(x), cy = (int)MathF.Round(y);
@@ -30,7 +31,7 @@ public static class DominantOrientations
                 }
                 var (dx, dy) = image.CentralGradient(cx + j, cy + i);
                 double weight = Math.Exp((i * i + j * j) * expScale);
-                double angle = Math.Atan2(dy, dx);
+                double angle = directions.At(cx + j, cy + i, dx, dy);
                 int bin = (int)Math.Round(Bins * angle / (2 * Math.PI));
                 bin = ((bin % Bins) + Bins) % Bins;
                 hist[bin] += weight * Math.Sqrt(dx * dx + dy * dy);

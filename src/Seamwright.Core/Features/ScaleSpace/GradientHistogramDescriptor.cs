@@ -16,9 +16,10 @@ public static class GradientHistogramDescriptor
     private const double CellWidthInScales = 3;
     private const double Clip = 0.2;
 
-    public static void Compute(FloatPlane image, float x, float y, double sigma, float angle, Span<byte> output)
+    public static void Compute(GradientDirections directions, float x, float y, double sigma, float angle, Span<byte> output)
     {
-        ArgumentNullException.ThrowIfNull(image);
+        ArgumentNullException.ThrowIfNull(directions);
+        var image = directions.Plane;
         const int d = Cells, n = Orientations;
         Span<double> hist = stackalloc double[(d + 2) * (d + 2) * (n + 2)];
         hist.Clear();
@@ -42,7 +43,7 @@ public static class GradientHistogramDescriptor
                 }
                 var (dx, dy) = image.CentralGradient(cx + j, cy + i);
                 double magnitude = Math.Sqrt(dx * dx + dy * dy) * Math.Exp((cRot * cRot + rRot * rRot) * expScale);
-                double oBin = (Math.Atan2(dy, dx) - angle) * binsPerRad;
+                double oBin = (directions.At(cx + j, cy + i, dx, dy) - angle) * binsPerRad;
                 Accumulate(hist, rBin, cBin, oBin, magnitude);
             }
         }

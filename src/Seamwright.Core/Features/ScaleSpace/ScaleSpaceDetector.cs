@@ -105,24 +105,36 @@ public static class ScaleSpaceDetector
             .OrderByDescending(c => c.Point.Response).ThenBy(c => c.Octave).ThenBy(c => c.Point.Y).ThenBy(c => c.Point.X)
             .Take(options.MaxFeatures)
             .ToList();
+        // Described layer by layer, so one layer's gradient directions are held at a time; assembled in the chosen order.
+        var angleCounts = new int[chosen.Count];
+        var allAngles = new float[chosen.Count * MaxAnglesPerPoint];
+        var allDescriptors = new byte[chosen.Count * MaxAnglesPerPoint * GradientHistogramDescriptor.Length];
+        foreach (var group in Enumerable.Range(0, chosen.Count).GroupBy(i => (chosen[i].Octave, chosen[i].Layer)))
+        {
+            var directions = new GradientDirections(gaussians[group.Key.Octave][group.Key.Layer - 1]);
+            foreach (int i in group)
+            {
+                var p = chosen[i].Point;
+                var angles = allAngles.AsSpan(i * MaxAnglesPerPoint, MaxAnglesPerPoint);
+                angleCounts[i] = DominantOrientations.Find(directions, p.X, p.Y, p.Sigma, angles);
+                for (int a = 0; a < angleCounts[i]; a++)
+                {
+                    GradientHistogramDescriptor.Compute(directions, p.X, p.Y, p.Sigma, angles[a],
+                        allDescriptors.AsSpan((i * MaxAnglesPerPoint + a) * GradientHistogramDescriptor.Length, GradientHistogramDescriptor.Length));
+                }
+            }
+        }
         var keypoints = new List<ScaleSpaceKeypoint>(chosen.Count);
         var descriptors = new List<byte>(chosen.Count * GradientHistogramDescriptor.Length);
-        Span<float> angles = stackalloc float[MaxAnglesPerPoint];
-        Span<byte> descriptor = stackalloc byte[GradientHistogramDescriptor.Length];
-        foreach (var (p, o, layer) in chosen)
+        for (int i = 0; i < chosen.Count; i++)
         {
-            var g = gaussians[o][layer - 1];
+            var (p, o, _) = chosen[i];
             double step = Math.Pow(2, o);
-            int count = DominantOrientations.Find(g, p.X, p.Y, p.Sigma, angles);
-            for (int a = 0; a < count; a++)
+            for (int a = 0; a < angleCounts[i]; a++)
             {
-                GradientHistogramDescriptor.Compute(g, p.X, p.Y, p.Sigma, angles[a], descriptor);
                 double x = p.X * step * mapping.Scale + mapping.Offset, y = p.Y * step * mapping.Scale + mapping.Offset;
-                keypoints.Add(new ScaleSpaceKeypoint((float)x, (float)y, (float)(p.Sigma * step * mapping.Scale), angles[a], p.Response));
-                foreach (byte b in descriptor)
-                {
-                    descriptors.Add(b);
-                }
+                keypoints.Add(new ScaleSpaceKeypoint((float)x, (float)y, (float)(p.Sigma * step * mapping.Scale), allAngles[i * MaxAnglesPerPoint + a], p.Response));
+                descriptors.AddRange(allDescriptors.AsSpan((i * MaxAnglesPerPoint + a) * GradientHistogramDescriptor.Length, GradientHistogramDescriptor.Length));
             }
         }
         return new ScaleSpaceFeatureSet([.. keypoints], [.. descriptors]);
