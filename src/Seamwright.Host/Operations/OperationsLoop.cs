@@ -8,7 +8,7 @@ namespace Seamwright.Host.Operations;
 /// One pass of the health and housekeeping loop, separated from its timer so tests can drive
 /// it: check health and free disk space; build the figures; while healthy, ping the
 /// systemd watchdog and rewrite the heartbeat files; log the figures line and run retention
-/// when due. While unhealthy nothing is pinged or rewritten, so systemd's watchdog and any
+/// when due; start a background read of the ledgers' nodes for the metrics. While unhealthy nothing is pinged or rewritten, so systemd's watchdog and any
 /// outside monitor of the heartbeat file see the stall.
 /// </summary>
 internal sealed class OperationsLoop(
@@ -23,7 +23,8 @@ internal sealed class OperationsLoop(
     DiskSpaceGuard? disk = null,
     MissedEventDetector? watchers = null,
     WorkerPool? pool = null,
-    RetentionSweeper? retention = null)
+    RetentionSweeper? retention = null,
+    NodeBoard? nodes = null)
 {
     public const string LoopName = "operations";
 
@@ -50,6 +51,7 @@ internal sealed class OperationsLoop(
             }
         }
 
+        nodes?.Refresh(); // in the background: the tick never waits on the database
         var report = health.Evaluate();
         var problems = report.Problems.ToList();
         if (disk?.PauseReason is { } paused)

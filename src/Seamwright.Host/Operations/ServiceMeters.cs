@@ -38,7 +38,20 @@ internal sealed class ServiceMeters : IDisposable
         _meter.CreateObservableGauge("healthy", () => gauges.Last() is { Healthy: true } ? 1 : 0, description: "1 while every service loop beats, else 0.");
         _meter.CreateObservableCounter("watcher_missed_changes_total", () => gauges.MissedChanges().Select(m => new Measurement<long>(m.Count, new KeyValuePair<string, object?>("root", m.Root))),
             description: "Changes found by periodic rescans that the watcher never reported, by watched root.");
+        _meter.CreateObservableGauge("node_last_heartbeat_timestamp_seconds",
+            () => gauges.Nodes().Select(n => new Measurement<double>(new DateTimeOffset(n.LastHeartbeatUtc, TimeSpan.Zero).ToUnixTimeMilliseconds() / 1000.0, NodeLabels(n))),
+            "s", "Unix time of each node's last heartbeat in the ledger (the database's clock on a shared ledger), by output root and node; as last read.");
+        _meter.CreateObservableGauge("node_heartbeat_age_seconds", () => gauges.Nodes().Select(n => new Measurement<double>(n.HeartbeatAgeSeconds, NodeLabels(n))),
+            "s", "Age of each node's last heartbeat when the ledger was last read, by the same clock, by output root and node.");
+        _meter.CreateObservableGauge("node_sets", () => gauges.Nodes().Select(n => new Measurement<int>(n.Sets, NodeLabels(n))),
+            description: "Sets each node holds a claim on (shared ledger) or has a run in progress of (SQLite), by output root and node; as last read.");
+        _meter.CreateObservableGauge("nodes_read_timestamp_seconds",
+            () => gauges.NodesReadAt().Select(r => new Measurement<double>(r.At.ToUnixTimeMilliseconds() / 1000.0, new KeyValuePair<string, object?>("output_root", r.Root))),
+            "s", "Unix time the nodes of each output root's ledger were last read; stops advancing while the ledger is unreachable (the node gauges then hold the last values read).");
     }
+
+    private static KeyValuePair<string, object?>[] NodeLabels(NodeFigure n) =>
+        [new("output_root", n.OutputRoot), new("node", n.Node)];
 
     public void RecordSet(string outcome) => _sets.Add(1, new KeyValuePair<string, object?>("outcome", outcome));
 
@@ -58,4 +71,6 @@ internal sealed class ServiceGaugeSource
     public Func<long> WorkerKills { get; init; } = () => 0;
     public Func<IEnumerable<(string Root, long Bytes)>> FreeDisk { get; init; } = () => [];
     public Func<IEnumerable<(string Root, long Count)>> MissedChanges { get; init; } = () => [];
+    public Func<IEnumerable<NodeFigure>> Nodes { get; init; } = () => [];
+    public Func<IEnumerable<(string Root, DateTimeOffset At)>> NodesReadAt { get; init; } = () => [];
 }

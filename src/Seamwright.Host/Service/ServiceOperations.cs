@@ -68,6 +68,9 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
     /// <summary>The service's System.Diagnostics.Metrics instruments (exported by the HTTP endpoint when on).</summary>
     public ServiceMeters? Meters { get; private set; }
 
+    /// <summary>The nodes of each root's ledger as the health loop last read them (the metrics read these).</summary>
+    public NodeBoard? Nodes { get; private set; }
+
     /// <summary>Changes found by periodic rescans that no watcher event reported (per root, by index).</summary>
     public MissedEventDetector? Missed { get; private set; }
 
@@ -149,6 +152,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         {
             Disk = new DiskSpaceGuard(new DriveFreeSpaceProbe(), outputRoots, Options.PauseBelowFreeMegabytes << 20, Options.ResumeMarginMegabytes << 20);
         }
+        Nodes = new NodeBoard(roots, Time);
         Missed = new MissedEventDetector(watchedRoots, Time, TimeSpan.FromSeconds(MissedEventDetector.DefaultGraceSeconds));
         var heartbeats = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, HeartbeatFile.FileName)).ToList();
         var caches = outputRoots.Select(o => Path.Combine(o, StateStore.StateFolder, "features")).ToList();
@@ -160,7 +164,7 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
         services.AddSingleton(Time);
         services.AddSingleton(sp => Loop = new OperationsLoop(Options, Health, Metrics, this, Time,
             sp.GetRequiredService<ILoggerFactory>().CreateLogger<OperationsLoop>(), heartbeats,
-            SystemdNotifier.FromEnvironment(), Disk, Missed, Pool, retention));
+            SystemdNotifier.FromEnvironment(), Disk, Missed, Pool, retention, Nodes));
         services.AddHostedService<OperationsService>();
         AddMeters(services, outputRoots);
     }
@@ -176,6 +180,8 @@ internal sealed class ServiceOperations : IServiceFigureSource, IAsyncDisposable
             WorkerKills = () => Pool?.Counters.Kills ?? 0,
             FreeDisk = () => outputRoots.Select(o => (o, probe.FreeBytes(o))),
             MissedChanges = () => Missed?.States().Select(s => (s.Root, s.MissedEvents)) ?? [],
+            Nodes = () => Nodes?.Nodes() ?? [],
+            NodesReadAt = () => Nodes?.ReadUtc() ?? [],
         });
         Metrics.Meters = Meters;
         if (HttpEndpoint.Parse(Options.HttpListen, out _) is { } listen)

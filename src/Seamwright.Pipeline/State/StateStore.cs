@@ -306,6 +306,10 @@ public sealed partial class StateStore : IDisposable
         SetState(setId, setState, profile, reason);
     }
 
+    /// <summary>The sets with a run in progress (state running), in order.</summary>
+    public IReadOnlyList<string> RunningSets() =>
+        Query("SELECT DISTINCT set_id FROM runs WHERE state='running' ORDER BY set_id", r => r.GetString(0));
+
     public IReadOnlyList<RunRecord> Runs(string? setId = null) =>
         Query(setId is null ? RunColumns + " ORDER BY run_id" : RunColumns + " WHERE set_id=@s ORDER BY run_id", ReadRun,
             setId is null ? [] : [("s", setId)]);
