@@ -53,6 +53,36 @@ public static class AtomicFile
         Write(path, stream => stream.Write(copy), flushToDisk: false, syncDirectory: false);
     }
 
+    /// <summary>
+    /// The first half of <see cref="WriteAllBytes(string, ReadOnlySpan{byte}, bool)"/>: the content in a
+    /// temporary file beside <paramref name="path"/>, flushed to disk; nothing a reader sees has
+    /// changed yet. <see cref="StagedFile.Commit"/> renames it over the target; disposing an
+    /// uncommitted one deletes it.
+    /// </summary>
+    public static StagedFile Stage(string path, ReadOnlySpan<byte> bytes)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(path);
+        string full = Path.GetFullPath(path);
+        string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
+        Directory.CreateDirectory(folder);
+        string temp = TemporaryFor(full);
+        try
+        {
+            using var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536);
+            stream.Write(bytes);
+            stream.Flush(true);
+        }
+        catch
+        {
+            TryDelete(temp);
+            throw;
+        }
+        return new StagedFile(full, temp);
+    }
+
+    private static string TemporaryFor(string full) =>
+        Path.Combine(Path.GetDirectoryName(full)!, $".{Path.GetFileName(full)}.{WriterTag}.{Guid.NewGuid():N}{TemporarySuffix}");
+
     /// <summary>Makes the renames inside <paramref name="folder"/> durable (fsync of the folder on POSIX).</summary>
     public static void SyncDirectory(string folder) => FlushFolder(folder);
 
@@ -137,7 +167,7 @@ public static class AtomicFile
         string full = Path.GetFullPath(path);
         string folder = Path.GetDirectoryName(full) ?? throw new ArgumentException("The path has no folder.", nameof(path));
         Directory.CreateDirectory(folder);
-        string temp = Path.Combine(folder, $".{Path.GetFileName(full)}.{WriterTag}.{Guid.NewGuid():N}{TemporarySuffix}");
+        string temp = TemporaryFor(full);
         try
         {
             using (var stream = new FileStream(temp, FileMode.CreateNew, FileAccess.Write, FileShare.None, 65536))
@@ -158,7 +188,7 @@ public static class AtomicFile
         }
     }
 
-    private static void TryDelete(string temp)
+    internal static void TryDelete(string temp)
     {
         try
         {

@@ -39,7 +39,8 @@ public sealed class SetProcessor(ProcessingContext ctx)
         }
         catch (LeaseLostException e)
         {
-            ctx.Store.AbandonRun(run.RunId, set.SetId, SetStates.Pending, set.Profile, e.Message);
+            // The set is the claim holder's now: only this run is ended, the set's state is left to it.
+            ctx.Store.AbandonRunOnly(run.RunId);
             return Finished(new SetOutcome(set.SetId, SetOutcomeKind.Deferred, run.RunId, null, e.Message));
         }
         catch (System.Data.Common.DbException) when (ctx.Store.IsShared)

@@ -310,6 +310,10 @@ public sealed partial class StateStore : IDisposable
     public IReadOnlyList<string> RunningSets() =>
         Query("SELECT DISTINCT set_id FROM runs WHERE state='running' ORDER BY set_id", r => r.GetString(0));
 
+    /// <summary>Marks a run abandoned and leaves its set alone (a node that lost its claim: the set is another node's now).</summary>
+    public void AbandonRunOnly(long runId) =>
+        Exec("UPDATE runs SET state='abandoned', finished=@t WHERE run_id=@r", ("r", runId), ("t", DateTime.UtcNow.Ticks));
+
     public IReadOnlyList<RunRecord> Runs(string? setId = null) =>
         Query(setId is null ? RunColumns + " ORDER BY run_id" : RunColumns + " WHERE set_id=@s ORDER BY run_id", ReadRun,
             setId is null ? [] : [("s", setId)]);
