@@ -15,6 +15,39 @@ public readonly record struct LensDistortion(double K1, double K2)
     /// <summary>Factor 1 + k1 r^2 + k2 r^4 for an ideal point at squared radius r2.</summary>
     public double Factor(double r2) => 1 + r2 * (K1 + K2 * r2);
 
+    /// <summary>
+    /// Squared ideal radius where the seen radius r (1 + k1 r^2 + k2 r^4) stops growing (its
+    /// derivative 1 + 3 k1 r^2 + 5 k2 r^4 reaches zero); infinity when it grows everywhere. Beyond
+    /// it the polynomial folds back: rays far outside the field would be drawn inside the image.
+    /// </summary>
+    public double MonotoneRadiusSquared
+    {
+        get
+        {
+            // Smallest positive root s of 5 k2 s^2 + 3 k1 s + 1 = 0.
+            double a = 5 * K2, b = 3 * K1;
+            if (a == 0)
+            {
+                return b < 0 ? -1 / b : double.PositiveInfinity;
+            }
+            double disc = b * b - 4 * a;
+            if (disc < 0)
+            {
+                return double.PositiveInfinity;
+            }
+            double sq = Math.Sqrt(disc);
+            double best = double.PositiveInfinity;
+            foreach (double s in new[] { (-b - sq) / (2 * a), (-b + sq) / (2 * a) })
+            {
+                if (s > 0 && s < best)
+                {
+                    best = s;
+                }
+            }
+            return best;
+        }
+    }
+
     /// <summary>Seen point of an ideal one (focal units).</summary>
     public (double X, double Y) Distort(double x, double y)
     {

@@ -36,15 +36,23 @@ public static class OverlapPrediction
         {
             if (rotation.Poses[a] is { } pa && rotation.Poses[b] is { } pb)
             {
+                var toB = pb.Rotation.Transpose();
+                double fold = pb.Distortion.MonotoneRadiusSquared;
                 map = (x, y) =>
                 {
                     var (wx, wy, wz) = pa.Ray(x, y);
-                    var (cx, cy, cz) = pb.Rotation.Transpose().Apply(wx, wy, wz);
+                    var (cx, cy, cz) = toB.Apply(wx, wy, wz);
                     if (cz <= 1e-6)
                     {
                         return null;
                     }
-                    var (dx, dy) = pb.Distortion.Distort(cx / cz, cy / cz);
+                    double ix = cx / cz, iy = cy / cz;
+                    if (ix * ix + iy * iy > fold)
+                    {
+                        // Beyond the lens polynomial's fold: outside B's field, though the formula would draw it inside.
+                        return null;
+                    }
+                    var (dx, dy) = pb.Distortion.Distort(ix, iy);
                     return (pb.FocalPx * dx + pb.Cx, pb.FocalPx * dy + pb.Cy);
                 };
             }
@@ -78,7 +86,9 @@ public static class OverlapPrediction
 
     /// <summary>
     /// Of the planned pairs, those predicted not to overlap; of the other pairs, those predicted to
-    /// overlap by at least <see cref="AddAtOrAbove"/> (either way round), in index order.
+    /// overlap by at least <see cref="AddAtOrAbove"/> (either way round), in index order. Only the
+    /// pairs whose reach meets (<see cref="OverlapReach"/>) are sampled: the same pairs as sampling
+    /// every pair, at a cost that grows with the overlaps rather than with the square of the set.
     /// </summary>
     public static (List<PredictedPair> NotExpected, List<PredictedPair> ToAdd) Plan(SetModelResult result, IReadOnlyList<ImageSize> sizes,
         IReadOnlyCollection<(int A, int B)> planned)
@@ -94,14 +104,11 @@ public static class OverlapPrediction
             }
         }
         var toAdd = new List<PredictedPair>();
-        for (int a = 0; a < sizes.Count; a++)
+        foreach (var (a, b) in OverlapReach.Of(result, sizes).Candidates())
         {
-            for (int b = a + 1; b < sizes.Count; b++)
+            if (!plannedSet.Contains((a, b)) && Shared(result, sizes, a, b) is double f && f >= AddAtOrAbove)
             {
-                if (!plannedSet.Contains((a, b)) && Shared(result, sizes, a, b) is double f && f >= AddAtOrAbove)
-                {
-                    toAdd.Add(new PredictedPair(a, b, f));
-                }
+                toAdd.Add(new PredictedPair(a, b, f));
             }
         }
         return (notExpected, toAdd);

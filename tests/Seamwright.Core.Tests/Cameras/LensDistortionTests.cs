@@ -25,4 +25,28 @@ public class LensDistortionTests
         Assert.Equal(0.8 * (1 - 0.064), x, 12);
         Assert.Equal(0, y);
     }
+
+    [Theory]
+    [InlineData(-0.1, 0)]
+    [InlineData(-0.3, 0.01)]
+    [InlineData(-0.05, -0.02)]
+    public void MonotoneRadius_IsWhereTheSeenRadiusStopsGrowing(double k1, double k2)
+    {
+        // The seen radius r (1 + k1 r^2 + k2 r^4) grows up to the fold and shrinks just past it.
+        var lens = new LensDistortion(k1, k2);
+        double s = lens.MonotoneRadiusSquared;
+        Assert.True(double.IsFinite(s) && s > 0, $"fold at r^2 = {s}");
+        double Seen(double r) => r * lens.Factor(r * r);
+        double rf = Math.Sqrt(s);
+        Assert.True(Seen(rf * 0.99) < Seen(rf), "below the fold the radius still grows");
+        Assert.True(Seen(rf * 1.01) < Seen(rf), "past the fold the radius shrinks");
+    }
+
+    [Theory]
+    [InlineData(0, 0)]
+    [InlineData(0.05, 0)]
+    [InlineData(0.05, 0.01)]
+    [InlineData(-0.2, 0.03)]
+    public void MonotoneRadius_WhereTheSeenRadiusAlwaysGrows_IsInfinite(double k1, double k2) =>
+        Assert.True(double.IsPositiveInfinity(new LensDistortion(k1, k2).MonotoneRadiusSquared));
 }
