@@ -23,6 +23,10 @@ internal static class Program
         {
             return Scale.PairProfile.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "profile-forecast")
+        {
+            return Scale.ForecastProfile.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "sweep-links")
         {
             return Scale.SweepLinks.Run(args[1..]);

@@ -24,35 +24,42 @@ internal sealed class LinkGraph
         Backward = new Transform2D[links.Count];
         FittedForward = new Transform2D[links.Count];
         FittedBackward = new Transform2D[links.Count];
-        foreach (int l in usable)
+        // Each link's orientation and fit on its own (in parallel; each writes only its own slots).
+        var usableLinks = usable.ToArray();
+        Parallel.For(0, usableLinks.Length, k => OrientAndFit(usableLinks[k], fitModel, robustScalePx));
+        foreach (int l in usableLinks)
         {
-            var link = links[l];
-            var (ax, ay) = TransformOps.Centroid(link.TiePoints, first: true, sizes[link.ImageA]);
-            var (bx, by) = TransformOps.Centroid(link.TiePoints, first: false, sizes[link.ImageB]);
-            Forward[l] = TransformOps.Orient(link.AToB, ax, ay);
-            TransformOps.TryOrientedInverse(link.AToB, bx, by, out Backward[l]);
-            FittedForward[l] = Forward[l];
-            FittedBackward[l] = Backward[l];
-            if (fitModel is MotionModel m && link.TiePoints.Length >= 2 * ModelParameters.Count(m))
-            {
-                // Least-squares fit of the link to its own tie points (reference A): the cycle check
-                // measures what the tie points say, not how a rough estimate extrapolates.
-                var fit = new JointRefiner(m, sizes, link.ImageA, [link.ImageA, link.ImageB], [(link.ImageA, link.ImageB, link.TiePoints)], robustScalePx, robustScalePx)
-                    .Solve(new Dictionary<int, Transform2D> { [link.ImageA] = Transform2D.Identity, [link.ImageB] = Backward[l] }, 30, adaptScale: false);
-                var bToA = fit.ToReference[link.ImageB];
-                if (bToA.IsFinite && TransformOps.TryOrientedInverse(bToA, ax, ay, out var aToB))
-                {
-                    FittedBackward[l] = TransformOps.Orient(bToA, bx, by);
-                    FittedForward[l] = aToB;
-                }
-            }
-            _adjacent[link.ImageA].Add(l);
-            _adjacent[link.ImageB].Add(l);
+            _adjacent[links[l].ImageA].Add(l);
+            _adjacent[links[l].ImageB].Add(l);
         }
         Active = new bool[links.Count];
         foreach (int l in usable)
         {
             Active[l] = true;
+        }
+    }
+
+    private void OrientAndFit(int l, MotionModel? fitModel, double robustScalePx)
+    {
+        var link = Links[l];
+        var (ax, ay) = TransformOps.Centroid(link.TiePoints, first: true, Sizes[link.ImageA]);
+        var (bx, by) = TransformOps.Centroid(link.TiePoints, first: false, Sizes[link.ImageB]);
+        Forward[l] = TransformOps.Orient(link.AToB, ax, ay);
+        TransformOps.TryOrientedInverse(link.AToB, bx, by, out Backward[l]);
+        FittedForward[l] = Forward[l];
+        FittedBackward[l] = Backward[l];
+        if (fitModel is MotionModel m && link.TiePoints.Length >= 2 * ModelParameters.Count(m))
+        {
+            // Least-squares fit of the link to its own tie points (reference A): the cycle check
+            // measures what the tie points say, not how a rough estimate extrapolates.
+            var fit = new JointRefiner(m, Sizes, link.ImageA, [link.ImageA, link.ImageB], [(link.ImageA, link.ImageB, link.TiePoints)], robustScalePx, robustScalePx)
+                .Solve(new Dictionary<int, Transform2D> { [link.ImageA] = Transform2D.Identity, [link.ImageB] = Backward[l] }, 30, adaptScale: false);
+            var bToA = fit.ToReference[link.ImageB];
+            if (bToA.IsFinite && TransformOps.TryOrientedInverse(bToA, ax, ay, out var aToB))
+            {
+                FittedBackward[l] = TransformOps.Orient(bToA, bx, by);
+                FittedForward[l] = aToB;
+            }
         }
     }
 

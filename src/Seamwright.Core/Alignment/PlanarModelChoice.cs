@@ -27,32 +27,21 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
     {
         ArgumentNullException.ThrowIfNull(links);
         var candidates = MotionFamily.All.Where(f => f.IsSpecialCaseOf(MotionFamily.Of(mostGeneral))).Select(f => f.Model).ToArray();
+        // Each link's scores on its own (in parallel), then summed in link order: the same sums whatever the thread count.
+        var perLink = new double[]?[links.Count];
+        Parallel.For(0, links.Count, i => perLink[i] = LinkScores(links[i].TiePoints, candidates, mostGeneral));
         var scores = candidates.ToDictionary(m => m, _ => 0.0);
         int used = 0;
-        foreach (var link in links)
+        foreach (var linkScores in perLink)
         {
-            var ties = link.TiePoints;
-            int n = ties.Length;
-            if (n < 2 * ModelParameters.Count(mostGeneral))
+            if (linkScores is null)
             {
                 continue;
             }
-            var residuals = new Dictionary<MotionModel, double[]>();
-            foreach (var m in candidates)
-            {
-                residuals[m] = Fit(m, ties) is { } t ? [.. ties.Select(c => TransferError.ForwardSquared(t, c))] : [];
-            }
-            var general = residuals[mostGeneral];
-            if (general.Length == 0)
-            {
-                continue;
-            }
-            int k = ModelParameters.Count(mostGeneral);
-            double sigma2 = Math.Max(general.Where(double.IsFinite).Order().Take(Math.Max(1, (int)(0.9 * n))).Sum() / Math.Max(1, 2 * n - k), 1e-6);
             used++;
-            foreach (var m in candidates)
+            for (int c = 0; c < candidates.Length; c++)
             {
-                scores[m] += Gric(residuals[m], sigma2, n, ModelParameters.Count(m));
+                scores[candidates[c]] += linkScores[c];
             }
         }
         if (used == 0)
@@ -62,6 +51,25 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
         var best = candidates.OrderBy(m => scores[m]).ThenBy(m => m).First();
         string detail = string.Join(", ", candidates.Select(m => string.Create(CultureInfo.InvariantCulture, $"{Name(m)} {scores[m]:0}")));
         return new PlanarModelChoice(best, $"{Name(best)} explains the tie points of {used} links best by GRIC (Torr 1998; {detail})", scores);
+    }
+
+    /// <summary>One link's GRIC per candidate (in candidate order); null when the link cannot compare models.</summary>
+    private static double[]? LinkScores(Correspondence[] ties, MotionModel[] candidates, MotionModel mostGeneral)
+    {
+        int n = ties.Length;
+        int k = ModelParameters.Count(mostGeneral);
+        if (n < 2 * k)
+        {
+            return null;
+        }
+        var residuals = candidates.Select(m => Fit(m, ties) is { } t ? ties.Select(c => TransferError.ForwardSquared(t, c)).ToArray() : []).ToArray();
+        var general = residuals[Array.IndexOf(candidates, mostGeneral)];
+        if (general.Length == 0)
+        {
+            return null;
+        }
+        double sigma2 = Math.Max(general.Where(double.IsFinite).Order().Take(Math.Max(1, (int)(0.9 * n))).Sum() / Math.Max(1, 2 * n - k), 1e-6);
+        return [.. candidates.Select((m, c) => Gric(residuals[c], sigma2, n, ModelParameters.Count(m)))];
     }
 
     private static double Gric(double[] squared, double sigma2, int n, int k)
@@ -86,7 +94,13 @@ public sealed record PlanarModelChoice(MotionModel Model, string Reason, IReadOn
     public static List<AlignmentLink> Refit(IReadOnlyList<AlignmentLink> links, MotionModel model)
     {
         ArgumentNullException.ThrowIfNull(links);
-        return [.. links.Select(l => l.TiePoints.Length >= 2 * ModelParameters.Count(model) && Fit(model, l.TiePoints) is { } t ? l with { AToB = t } : l)];
+        var refitted = new AlignmentLink[links.Count];
+        Parallel.For(0, links.Count, i =>
+        {
+            var l = links[i];
+            refitted[i] = l.TiePoints.Length >= 2 * ModelParameters.Count(model) && Fit(model, l.TiePoints) is { } t ? l with { AToB = t } : l;
+        });
+        return [.. refitted];
     }
 
     /// <summary>The family's least-squares fit of the transfer error (<see cref="MotionFamily.FitTransferError"/>).</summary>

@@ -205,14 +205,23 @@ public static class SetAligner
             }
             // Most links first; among equals the most central (smallest sum of link hops to the
             // others, so chains from the reference stay short), then the larger total weight.
+            var connectivity = members.Select(i => _graph!.Connectivity(i, allowed)).ToArray();
+            int maxDegree = connectivity.Max(c => c.Degree);
+            // Only the images of the highest degree can win, so only they need their hop sums.
+            var hops = new int[_graph!.ImageCount];
+            Array.Fill(hops, -1);
+            var queue = new int[_graph.ImageCount];
             int best = -1;
             (int Degree, long Hops, double Weight) bestKey = default;
-            foreach (int i in members)
+            for (int k = 0; k < members.Length; k++)
             {
-                var (degree, weight) = _graph!.Connectivity(i, allowed);
-                var key = (degree, HopSum(i, allowed), weight);
-                if (best < 0 || key.degree > bestKey.Degree
-                    || (key.degree == bestKey.Degree && (key.Item2 < bestKey.Hops || (key.Item2 == bestKey.Hops && key.weight > bestKey.Weight))))
+                if (connectivity[k].Degree < maxDegree)
+                {
+                    continue;
+                }
+                int i = members[k];
+                var key = (connectivity[k].Degree, HopSum(i, allowed, hops, queue), connectivity[k].Weight);
+                if (best < 0 || key.Item2 < bestKey.Hops || (key.Item2 == bestKey.Hops && key.Item3 > bestKey.Weight))
                 {
                     best = i;
                     bestKey = key;
@@ -221,24 +230,30 @@ public static class SetAligner
             return best;
         }
 
-        private long HopSum(int start, Func<int, bool> allowed)
+        /// <summary>Sum of link hops from <paramref name="start"/> to every image it reaches (breadth first; the arrays are scratch, hops reset to -1 on return).</summary>
+        private long HopSum(int start, Func<int, bool> allowed, int[] hops, int[] queue)
         {
-            var hops = new Dictionary<int, int> { [start] = 0 };
-            var queue = new Queue<int>();
-            queue.Enqueue(start);
+            hops[start] = 0;
+            queue[0] = start;
+            int head = 0, tail = 1;
             long sum = 0;
-            while (queue.Count > 0)
+            while (head < tail)
             {
-                int u = queue.Dequeue();
+                int u = queue[head++];
                 sum += hops[u];
                 foreach (int l in _graph!.LinksAt(u, allowed))
                 {
                     int v = _graph.Other(l, u);
-                    if (hops.TryAdd(v, hops[u] + 1))
+                    if (hops[v] < 0)
                     {
-                        queue.Enqueue(v);
+                        hops[v] = hops[u] + 1;
+                        queue[tail++] = v;
                     }
                 }
+            }
+            for (int k = 0; k < tail; k++)
+            {
+                hops[queue[k]] = -1;
             }
             return sum;
         }

@@ -36,7 +36,7 @@ public class OverlapReachTests
     [Fact]
     public void PlanarGrid_EveryPairThatSharesAreaMayMeet_AndMostPairsAreRuledOut()
     {
-        var (sizes, links) = Grid(12, 10, 0.02, 3);
+        var (sizes, links) = GridLinks.Make(12, 10, 0.02, 3);
         var result = SetModelSelector.Align(sizes, new int[sizes.Length], links, MotionModel.Homography, SetModelKind.Auto);
         Assert.False(result.IsRotation);
         AssertSound(result, sizes, out int ruledOut);
@@ -48,7 +48,7 @@ public class OverlapReachTests
     [Fact]
     public void Plan_AddsTheSamePairsAsSamplingEveryPair()
     {
-        var (sizes, links) = Grid(8, 6, 0.02, 9);
+        var (sizes, links) = GridLinks.Make(8, 6, 0.02, 9);
         // Plan the horizontal neighbours and the first column (one connected set): the forecast must add the other vertical ones.
         var planned = links.Where(l => (l.ImageB == l.ImageA + 1 && l.ImageA / 8 == l.ImageB / 8) || (l.ImageA % 8 == 0 && l.ImageB == l.ImageA + 8)).ToList();
         var result = SetModelSelector.Align(sizes, new int[sizes.Length], planned, MotionModel.Homography, SetModelKind.Auto);
@@ -86,46 +86,5 @@ public class OverlapReachTests
                 }
             }
         }
-    }
-
-    /// <summary>A cols x rows grid of 640x480 tiles 520x390 apart, each slightly rotated and scaled; links between the eight neighbours.</summary>
-    private static (ImageSize[] Sizes, List<AlignmentLink> Links) Grid(int cols, int rows, double jitter, ulong seed)
-    {
-        var rng = new SyntheticRandom(seed);
-        int n = cols * rows;
-        var toScene = new Transform2D[n];
-        for (int k = 0; k < n; k++)
-        {
-            double angle = jitter * (rng.NextDouble() - 0.5), scale = 1 + jitter * (rng.NextDouble() - 0.5);
-            double c = scale * Math.Cos(angle), s = scale * Math.Sin(angle);
-            toScene[k] = new Transform2D(c, -s, 520 * (k % cols), s, c, 390 * (k / cols), 0, 0, 1);
-        }
-        var links = new List<AlignmentLink>();
-        for (int a = 0; a < n; a++)
-        {
-            for (int b = a + 1; b < n; b++)
-            {
-                if (Math.Abs(a % cols - b % cols) > 1 || Math.Abs(a / cols - b / cols) > 1)
-                {
-                    continue;
-                }
-                var aToB = (toScene[b].Inverse() * toScene[a]).Normalized();
-                var ties = new List<Correspondence>();
-                for (int i = 0; i < 300; i++)
-                {
-                    double x = 639 * rng.NextDouble(), y = 479 * rng.NextDouble();
-                    var (u, v) = aToB.Apply(x, y);
-                    if (u >= 0 && u <= 639 && v >= 0 && v <= 479)
-                    {
-                        ties.Add(new Correspondence(x, y, u + 0.1 * rng.NextGaussian(), v + 0.1 * rng.NextGaussian()));
-                    }
-                }
-                if (ties.Count >= 20)
-                {
-                    links.Add(new AlignmentLink(a, b, aToB, [.. ties], PairStatus.Accepted, ties.Count));
-                }
-            }
-        }
-        return (Enumerable.Repeat(new ImageSize(640, 480), n).ToArray(), links);
     }
 }
