@@ -8,11 +8,13 @@ using Seamwright.Tests.Shared;
 namespace Seamwright.Benchmarks.Scale;
 
 /// <summary>
-/// <c>scale N [--sweep] [--seed S] [--cache DIR] [--rerun] [--keep] [-- overrides...]</c>: generates
+/// <c>scale N [--sweep] [--enlarge F] [--seed S] [--cache DIR] [--rerun] [--keep] [-- overrides...]</c>: generates
 /// (or reuses) a grid of N tiles of 640 x 480 (with <c>--sweep</c> one row of N tiles), runs the real <c>seamwright run</c> on it as a child
 /// process and prints wall time, peak resident memory (from /proc, outside the process), time
 /// per stage and the median corner error against the generator's truth. With <c>--rerun</c> one
 /// tile is then replaced (same view, new sensor noise, as a re-shot tile) and the set run again.
+/// With <c>--enlarge F</c> the tiles are resized by F into colour frames (<see cref="LargeFrames"/>;
+/// 8.85 gives 24 MP), a memory and time workload (not with <c>--rerun</c>).
 /// Settings overrides after the options are passed to <c>run</c> (e.g.
 /// <c>--Seamwright:Service:MaxParallelJobs=1</c>).
 /// </summary>
@@ -22,12 +24,13 @@ internal static class ScaleBenchmark
     {
         if (args.Length == 0 || !int.TryParse(args[0], CultureInfo.InvariantCulture, out int n) || n < 4)
         {
-            Console.Error.WriteLine("usage: scale N [--sweep] [--seed S] [--cache DIR] [--rerun] [--keep] [--Seamwright:...=value ...]");
+            Console.Error.WriteLine("usage: scale N [--sweep] [--enlarge F] [--seed S] [--cache DIR] [--rerun] [--keep] [--Seamwright:...=value ...]");
             return 2;
         }
         ulong seed = 11;
         string cache = Path.Combine(Path.GetTempPath(), "seamwright-scale");
         bool rerun = false, keep = false, sweep = false;
+        double enlarge = 1;
         var overrides = new List<string>();
         for (int i = 1; i < args.Length; i++)
         {
@@ -38,12 +41,23 @@ internal static class ScaleBenchmark
                 case "--rerun": rerun = true; break;
                 case "--keep": keep = true; break;
                 case "--sweep": sweep = true; break;
+                case "--enlarge": enlarge = double.Parse(args[++i], CultureInfo.InvariantCulture); break;
                 default: overrides.Add(args[i]); break;
             }
         }
+        if (enlarge != 1 && (rerun || !(enlarge > 1)))
+        {
+            Console.Error.WriteLine("--enlarge takes a factor above 1 and does not combine with --rerun");
+            return 2;
+        }
         var clock = System.Diagnostics.Stopwatch.StartNew();
         string grid = ScaleGrid.Ensure(n, seed, cache, sweep);
-        Console.WriteLine($"grid: {n} tiles of {ScaleGrid.TileWidth}x{ScaleGrid.TileHeight} in {grid} (ready in {clock.Elapsed.TotalSeconds:0.0} s)");
+        if (enlarge > 1)
+        {
+            grid = LargeFrames.Ensure(grid, enlarge);
+        }
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"grid: {n} tiles of {Math.Round(ScaleGrid.TileWidth * enlarge)}x{Math.Round(ScaleGrid.TileHeight * enlarge)} in {grid} (ready in {clock.Elapsed.TotalSeconds:0.0} s)"));
         string work = Path.Combine(cache, "work-" + Environment.ProcessId.ToString(CultureInfo.InvariantCulture));
         string input = Path.Combine(work, "input");
         string output = Path.Combine(work, "out");
