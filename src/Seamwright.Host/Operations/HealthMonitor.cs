@@ -9,6 +9,7 @@ namespace Seamwright.Host.Operations;
 internal sealed class HealthMonitor(TimeProvider time)
 {
     private readonly Dictionary<string, (TimeSpan MaxSilence, DateTimeOffset Last)> _loops = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, string> _why = new(StringComparer.Ordinal);
     private string? _fatal;
 
     public void Register(string loop, TimeSpan maxSilence)
@@ -35,6 +36,16 @@ internal sealed class HealthMonitor(TimeProvider time)
             {
                 _loops[loop] = (entry.MaxSilence, time.GetUtcNow());
             }
+            _why.Remove(loop);
+        }
+    }
+
+    /// <summary>Why <paramref name="loop"/> cannot beat now (its stall, once too long, names this reason); its next beat clears it.</summary>
+    public void CannotBeat(string loop, string reason)
+    {
+        lock (_loops)
+        {
+            _why[loop] = reason;
         }
     }
 
@@ -52,7 +63,8 @@ internal sealed class HealthMonitor(TimeProvider time)
                 var silent = now - last;
                 if (silent > maxSilence)
                 {
-                    stalls.Add($"{name} silent for {silent.TotalSeconds:0} s (limit {maxSilence.TotalSeconds:0} s)");
+                    stalls.Add($"{name} silent for {silent.TotalSeconds:0} s (limit {maxSilence.TotalSeconds:0} s)"
+                        + (_why.TryGetValue(name, out string? why) ? ": " + why : ""));
                 }
             }
         }

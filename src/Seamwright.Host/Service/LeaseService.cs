@@ -45,6 +45,7 @@ internal sealed partial class LeaseService(ServiceRuntime runtime, ILogger<Lease
             catch (DbException e)
             {
                 runtime.LedgerDown = true;
+                runtime.Ops?.Health.CannotBeat(LoopName, "the shared ledger is unreachable: " + e.Message);
                 if (!down)
                 {
                     LogDown(log, e.Message);

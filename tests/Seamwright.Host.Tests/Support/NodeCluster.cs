@@ -38,7 +38,8 @@ internal sealed class NodeCluster : IDisposable
 
     public StateSettings State => new() { Provider = StateProviders.PostgreSql, ConnectionString = _connection, LeaseSeconds = LeaseSeconds };
 
-    public void Start(string node)
+    /// <summary>Starts a node; <paramref name="more"/> are settings of this node only (after the cluster's).</summary>
+    public void Start(string node, params string[] more)
     {
         var env = new Dictionary<string, string>
         {
@@ -51,6 +52,7 @@ internal sealed class NodeCluster : IDisposable
             "--Seamwright:Service:NodeName=" + node,
             "--Seamwright:State:LeaseSeconds=" + LeaseSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture),
             .. _extra,
+            .. more,
         ]);
     }
 
