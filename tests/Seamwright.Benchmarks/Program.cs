@@ -15,6 +15,10 @@ internal static class Program
         {
             return Scale.ScaleBenchmark.Run(args[1..]);
         }
+        if (args.Length > 0 && args[0] == "nodes")
+        {
+            return Scale.NodesBenchmark.Run(args[1..]);
+        }
         if (args.Length > 0 && args[0] == "shoots")
         {
             return Scale.ShootsBenchmark.Run(args[1..]);
