@@ -171,7 +171,7 @@ public static class PairProcessor
     /// predicted position) and polishes from that estimate on the new matches; keeps the new set only when
     /// it holds more inliers than the first.
     /// </summary>
-    private static (FeatureMatch[], Correspondence[], PairEstimate) Guide(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs,
+    internal static (FeatureMatch[], Correspondence[], PairEstimate) Guide(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs,
         Correspondence[] matches, PairEstimate first, GuidedMatchOptions guided, EstimationOptions coarse, double radius)
     {
         var model = first.Transform!.Value;
@@ -184,7 +184,7 @@ public static class PairProcessor
     }
 
     /// <summary>Re-localises, in place, every match within twice the threshold of the model; returns how many succeeded.</summary>
-    private static int Relocalize(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs, Correspondence[] ties, Transform2D model,
+    internal static int Relocalize(ImageFeatures a, ImageFeatures b, FeatureMatch[] pairs, Correspondence[] ties, Transform2D model,
         double threshold, PairSettings settings)
     {
         int radius = Math.Min(a.PatchRadius, b.PatchRadius);

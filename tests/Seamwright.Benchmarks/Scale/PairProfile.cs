@@ -16,8 +16,8 @@ namespace Seamwright.Benchmarks.Scale;
 /// <c>tiles</c> tiles (default 40) with the real engine and runs every right and lower
 /// neighbour pair through <see cref="PairProcessor"/> on one thread, printing the thread CPU time
 /// of the whole pair next to the stage timings the pair reports (matching, sampling,
-/// refinement, polish with runner-up, re-localisation) and the parts timed here on their own
-/// (matching, the first estimate, guided matching), plus feature, match, LP and inlier counts,
+/// refinement, polish with runner-up) and the parts timed here on their own on the thread CPU clock
+/// (matching, the first estimate, guided matching with its polish, re-localisation, the final re-polish), plus feature, match, LP and inlier counts,
 /// and a hash of every pair's transform and tie points (the same hash means the same results).
 /// </summary>
 internal static class PairProfile
@@ -74,12 +74,12 @@ internal static class PairProfile
             var parts = Parts(fa, fb, estimation, seed);
             var e = pa.Estimate;
             hash = Mix(hash, e, pa.TiePoints);
-            rows.Add([total, parts.Matching, parts.First, parts.Guided, e.TimingsMs.Sampling, e.TimingsMs.Refinement, e.TimingsMs.Polish,
+            rows.Add([total, parts.Matching, parts.First, parts.Guided, parts.Relocalize, parts.Final, e.TimingsMs.Sampling, e.TimingsMs.Refinement, e.TimingsMs.Polish,
                 fa.Count, parts.Matches, e.LpCount, e.Consensus.Final, pa.TiePoints.Count]);
         }
         Console.WriteLine(FormattableString.Invariant($"{tiles} tiles, features {featureCpu / tiles:0.0} ms CPU per tile; {pairs.Count} pairs (one thread)"));
-        string[] names = ["pair CPU ms", "  matching", "  first estimate", "  guided matching", "  sampling (first)", "  refinement (first)",
-            "  polish + runner-up + re-polish", "features A", "matches", "LPs", "final inliers", "tie points"];
+        string[] names = ["pair CPU ms", "  matching", "  first estimate", "  guided matching + polish", "  re-localisation", "  distinct + re-polish",
+            "  sampling (first, wall)", "  refinement (first, wall)", "  polish + runner-up + re-polish (wall)", "features A", "matches", "LPs", "final inliers", "tie points"];
         for (int c = 0; c < names.Length; c++)
         {
             var col = rows.Select(r => r[c]).Order().ToArray();
@@ -94,9 +94,14 @@ internal static class PairProfile
         return 0;
     }
 
-    private readonly record struct PartTimes(double Matching, double First, double Guided, int Matches);
+    private readonly record struct PartTimes(double Matching, double First, double Guided, double Relocalize, double Final, int Matches);
 
-    /// <summary>The pair's first stages again, each timed on its own (same calls as <see cref="PairProcessor"/>).</summary>
+    /// <summary>
+    /// The pair's corner path again, each step on the thread CPU clock (the same calls as
+    /// <see cref="PairProcessor"/>: matching, first estimate, guided matching with its polish,
+    /// re-localisation, repeats dropped and the final re-polish); the first estimate's own stages
+    /// are then timed once more on their own (<see cref="SubStages"/>), outside these figures.
+    /// </summary>
     private static PartTimes Parts(ImageFeatures a, ImageFeatures b, EstimationSettings s, ulong seed)
     {
         var options = EstimationOptions.Default with
@@ -104,20 +109,33 @@ internal static class PairProfile
             Model = s.MotionModel, Threshold = s.ThresholdPx, Seed = seed, Refine = s.RefineConsensus,
             Confidence = s.Confidence, MaxIterations = s.MaxIterations,
         };
+        var settings = new PairSettings { Estimation = options, Matching = new MatchOptions { MaxRatio = s.RatioTest } };
         double c0 = ThreadCpuClock.NowMilliseconds();
-        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, new MatchOptions { MaxRatio = s.RatioTest });
+        var result = HammingMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, settings.Matching);
         double c1 = ThreadCpuClock.NowMilliseconds();
-        var points = result.Matches.Select(m => new Correspondence(a.Keypoints[m.IndexA].X, a.Keypoints[m.IndexA].Y, b.Keypoints[m.IndexB].X, b.Keypoints[m.IndexB].Y)).ToArray();
+        var pairs = result.Matches;
+        var points = pairs.Select(m => new Correspondence(a.Keypoints[m.IndexA].X, a.Keypoints[m.IndexA].Y, b.Keypoints[m.IndexB].X, b.Keypoints[m.IndexB].Y)).ToArray();
         double coarse = Math.Max(options.Threshold, 1.5 * Math.Max(a.WorkingScale, b.WorkingScale));
         var first = PairEstimator.Estimate(points, a.FullSize, b.FullSize, options with { Threshold = coarse });
         double c2 = ThreadCpuClock.NowMilliseconds();
-        SubStages(points, a, options with { Threshold = coarse });
-        if (first.Transform is { } model)
+        var estimate = first;
+        if (settings.Guided is { } guided && first.Status == PairStatus.Accepted)
         {
-            GuidedMatcher.Match(a.Descriptors, b.Descriptors, a.Keypoints, b.Keypoints, model, new GuidedMatchOptions { Radius = 2 * coarse });
+            (pairs, points, estimate) = PairProcessor.Guide(a, b, pairs, points, first, guided, options with { Threshold = coarse }, 2 * coarse);
         }
-        double c3 = ThreadCpuClock.NowMilliseconds();
-        return new PartTimes(c1 - c0, c2 - c1, c3 - c2, result.Matches.Length);
+        double c3 = ThreadCpuClock.NowMilliseconds(), c4 = c3, c5 = c3;
+        if (estimate.Transform is { } model)
+        {
+            var ties = (Correspondence[])points.Clone();
+            PairProcessor.Relocalize(a, b, pairs, ties, model, coarse, settings);
+            c4 = ThreadCpuClock.NowMilliseconds();
+            ties = DistinctTies.Distinct(ties, Math.Max(1.0, Math.Max(a.WorkingScale, b.WorkingScale)));
+            PairEstimator.Repolish(ties, estimate, a.FullSize, b.FullSize, options);
+            c5 = ThreadCpuClock.NowMilliseconds();
+        }
+        SubStages(result.Matches.Select(m => new Correspondence(a.Keypoints[m.IndexA].X, a.Keypoints[m.IndexA].Y, b.Keypoints[m.IndexB].X, b.Keypoints[m.IndexB].Y)).ToArray(),
+            a, options with { Threshold = coarse });
+        return new PartTimes(c1 - c0, c2 - c1, c3 - c2, c4 - c3, c5 - c4, result.Matches.Length);
     }
 
     private static readonly Dictionary<string, List<double>> Sub = [];
