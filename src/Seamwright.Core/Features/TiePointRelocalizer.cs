@@ -135,17 +135,24 @@ public static class TiePointRelocalizer
         {
             return false;
         }
+        var samples = new CorrelationTemplate(template, energy, qx, qy, minX, maxX, minY, maxY);
         // Hill-climb from the predicted position over the integer grid of corrections: the model is
         // already close, so the peak is a few steps away and most of the grid is never evaluated.
+        // The neighbours not yet evaluated are correlated together (each score depends only on its
+        // correction, so the order of evaluation does not change any of them).
         int gw = dx1 - dx0 + 1, gh = dy1 - dy0 + 1;
         Span<double> score = gw * gh <= 1024 ? stackalloc double[gw * gh] : new double[gw * gh];
         score.Fill(double.NaN);
+        Span<float> cellX = stackalloc float[PatchCorrelation.MaxOffsets];
+        Span<float> cellY = stackalloc float[PatchCorrelation.MaxOffsets];
+        Span<int> cells = stackalloc int[PatchCorrelation.MaxOffsets];
+        Span<double> values = stackalloc double[PatchCorrelation.MaxOffsets];
         int cx = -dx0, cy = -dy0;
         int bestIndex = cy * gw + cx;
-        best = score[bestIndex] = Correlate(template, energy, qx, qy, 0, 0, other);
+        best = score[bestIndex] = PatchCorrelation.Scalar(samples, 0, 0, other);
         while (true)
         {
-            int next = bestIndex;
+            int pending = 0;
             for (int ny = Math.Max(0, cy - 1); ny <= Math.Min(gh - 1, cy + 1); ny++)
             {
                 for (int nx = Math.Max(0, cx - 1); nx <= Math.Min(gw - 1, cx + 1); nx++)
@@ -153,8 +160,26 @@ public static class TiePointRelocalizer
                     int gi = ny * gw + nx;
                     if (double.IsNaN(score[gi]))
                     {
-                        score[gi] = Correlate(template, energy, qx, qy, nx + dx0, ny + dy0, other);
+                        cellX[pending] = nx + dx0;
+                        cellY[pending] = ny + dy0;
+                        cells[pending++] = gi;
                     }
+                }
+            }
+            if (pending > 0)
+            {
+                PatchCorrelation.Correlate(samples, cellX[..pending], cellY[..pending], other, values);
+                for (int c = 0; c < pending; c++)
+                {
+                    score[cells[c]] = values[c];
+                }
+            }
+            int next = bestIndex;
+            for (int ny = Math.Max(0, cy - 1); ny <= Math.Min(gh - 1, cy + 1); ny++)
+            {
+                for (int nx = Math.Max(0, cx - 1); nx <= Math.Min(gw - 1, cx + 1); nx++)
+                {
+                    int gi = ny * gw + nx;
                     if (score[gi] > score[next])
                     {
                         next = gi;
@@ -186,7 +211,7 @@ public static class TiePointRelocalizer
         // A position that does not settle (a ridge rather than a peak, about 2 % of the sweep benchmark's
         // tie points) keeps the first parabola's estimate, as before the re-centring.
         double firstX = sx, firstY = sy;
-        if (!Recentre(template, energy, qx, qy, other, dx0 + 1, dx1 - 1, dy0 + 1, dy1 - 1, ref sx, ref sy))
+        if (!Recentre(samples, other, dx0 + 1, dx1 - 1, dy0 + 1, dy1 - 1, ref sx, ref sy))
         {
             (sx, sy) = (firstX, firstY);
         }
@@ -213,9 +238,13 @@ public static class TiePointRelocalizer
     /// parabola through the three values puts its vertex at the centre). False when the position
     /// leaves the searched window or does not settle.
     /// </summary>
-    private static bool Recentre(ReadOnlySpan<float> template, double energy, ReadOnlySpan<float> qx, ReadOnlySpan<float> qy,
-        FullResolutionPatch other, int loX, int hiX, int loY, int hiY, ref double sx, ref double sy)
+    private static bool Recentre(in CorrelationTemplate samples, FullResolutionPatch other, int loX, int hiX, int loY, int hiY,
+        ref double sx, ref double sy)
     {
+        // The centre and its four neighbours, correlated together.
+        Span<float> ox = stackalloc float[5];
+        Span<float> oy = stackalloc float[5];
+        Span<double> c = stackalloc double[5];
         for (int step = 0; step < RecentreSteps; step++)
         {
             if (sx < loX || sx > hiX || sy < loY || sy > hiY)
@@ -223,9 +252,14 @@ public static class TiePointRelocalizer
                 return false;
             }
             float fx = (float)sx, fy = (float)sy;
-            double centre = Correlate(template, energy, qx, qy, fx, fy, other);
-            double ex = Parabola(Correlate(template, energy, qx, qy, fx - 1, fy, other), centre, Correlate(template, energy, qx, qy, fx + 1, fy, other));
-            double ey = Parabola(Correlate(template, energy, qx, qy, fx, fy - 1, other), centre, Correlate(template, energy, qx, qy, fx, fy + 1, other));
+            ox[0] = fx; oy[0] = fy;
+            ox[1] = fx - 1; oy[1] = fy;
+            ox[2] = fx + 1; oy[2] = fy;
+            ox[3] = fx; oy[3] = fy - 1;
+            ox[4] = fx; oy[4] = fy + 1;
+            PatchCorrelation.Correlate(samples, ox, oy, other, c);
+            double ex = Parabola(c[1], c[0], c[2]);
+            double ey = Parabola(c[3], c[0], c[4]);
             sx += ex;
             sy += ey;
             double moved = Math.Max(Math.Abs(ex), Math.Abs(ey));
@@ -241,29 +275,5 @@ public static class TiePointRelocalizer
     {
         double den = left - 2 * centre + right;
         return den < 0 ? Math.Clamp(0.5 * (left - right) / den, -0.5, 0.5) : 0;
-    }
-
-    private static double Correlate(ReadOnlySpan<float> template, double templateEnergy, ReadOnlySpan<float> qx, ReadOnlySpan<float> qy,
-        float dx, float dy, FullResolutionPatch other)
-    {
-        var p = other.Pixels;
-        int side = other.Side;
-        double sum = 0, sum2 = 0, cross = 0;
-        int n = template.Length;
-        for (int i = 0; i < n; i++)
-        {
-            float x = qx[i] + dx, y = qy[i] + dy;
-            int x0 = (int)x, y0 = (int)y;
-            float fx = x - x0, fy = y - y0;
-            int o = y0 * side + x0;
-            float top = p[o] + fx * (p[o + 1] - p[o]);
-            float bottom = p[o + side] + fx * (p[o + side + 1] - p[o + side]);
-            float s = top + fy * (bottom - top);
-            sum += s;
-            sum2 += s * s;
-            cross += template[i] * s;
-        }
-        double variance = sum2 - sum * sum / n;
-        return variance > 1e-9 ? cross / Math.Sqrt(templateEnergy * variance) : 0;
     }
 }
