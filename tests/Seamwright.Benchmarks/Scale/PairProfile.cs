@@ -11,7 +11,7 @@ using LimitSettings = Seamwright.Pipeline.Settings.LimitSettings;
 namespace Seamwright.Benchmarks.Scale;
 
 /// <summary>
-/// <c>profile-pairs [tiles] [--cache DIR]</c>: where one grid pair's time goes. Takes the
+/// <c>profile-pairs [tiles] [--cache DIR] [--dump FILE]</c>: where one grid pair's time goes. Takes the
 /// <c>scale</c> benchmark's 400-tile grid (rendered when missing), analyses the first
 /// <c>tiles</c> tiles (default 40) with the real engine and runs every right and lower
 /// neighbour pair through <see cref="PairProcessor"/> on one thread, printing the thread CPU time
@@ -26,11 +26,16 @@ internal static class PairProfile
     {
         int tiles = args.Length > 0 && int.TryParse(args[0], CultureInfo.InvariantCulture, out int t) ? t : 40;
         string cache = Path.Combine(Path.GetTempPath(), "seamwright-scale");
+        string? dump = null;
         for (int i = 1; i < args.Length; i++)
         {
             if (args[i] == "--cache")
             {
                 cache = args[++i];
+            }
+            else if (args[i] == "--dump")
+            {
+                dump = args[++i];
             }
         }
         const int n = 400;
@@ -62,6 +67,7 @@ internal static class PairProfile
         }
         var estimation = new EstimationSettings();
         var rows = new List<double[]>();
+        var mapped = new List<string>();
         ulong hash = 14695981039346656037UL;
         foreach (var (a, b) in pairs)
         {
@@ -74,6 +80,7 @@ internal static class PairProfile
             var parts = Parts(fa, fb, estimation, seed);
             var e = pa.Estimate;
             hash = Mix(hash, e, pa.TiePoints);
+            mapped.Add(Corners(a, b, e, fa.FullSize));
             rows.Add([total, parts.Matching, parts.First, parts.Guided, parts.Relocalize, parts.Final, e.TimingsMs.Sampling, e.TimingsMs.Refinement, e.TimingsMs.Polish,
                 fa.Count, parts.Matches, e.LpCount, e.Consensus.Final, pa.TiePoints.Count]);
         }
@@ -91,6 +98,11 @@ internal static class PairProfile
             Console.WriteLine(FormattableString.Invariant($"{"  first estimate: " + name,-34} median {col[col.Length / 2],9:0.00}  mean {col.Average(),9:0.00}  max {col[^1],9:0.00}  (CPU)"));
         }
         Console.WriteLine(FormattableString.Invariant($"results hash {hash:X16}"));
+        if (dump is not null)
+        {
+            File.WriteAllLines(dump, mapped);
+            Console.WriteLine($"pair status, inliers and mapped corners of A written to {dump}");
+        }
         return 0;
     }
 
@@ -160,6 +172,21 @@ internal static class PairProfile
         Add("polish", c3 - c2);
         PairEstimator.RunnerUpConsensus(points, polish.Transform, polish.InlierIndices, a.FullSize, o);
         Add("runner-up", ThreadCpuClock.NowMilliseconds() - c3);
+    }
+
+    /// <summary>One line per pair: indices, status, final inliers and where the transform puts A's four corners (for comparing two builds).</summary>
+    private static string Corners(int a, int b, PairEstimate e, ImageSize size)
+    {
+        var line = new System.Text.StringBuilder(FormattableString.Invariant($"{a} {b} {e.Status} {e.Consensus.Final}"));
+        if (e.Transform is { } h)
+        {
+            foreach (var (x, y) in Transform2D.Corners(size.Width, size.Height))
+            {
+                var (u, v) = h.Apply(x, y);
+                line.Append(FormattableString.Invariant($" {u:R} {v:R}"));
+            }
+        }
+        return line.ToString();
     }
 
     private static ulong Mix(ulong hash, PairEstimate e, IReadOnlyList<Correspondence> ties)
