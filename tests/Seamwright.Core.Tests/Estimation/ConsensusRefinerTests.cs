@@ -104,6 +104,45 @@ public class ConsensusRefinerTests
         Assert.Equal(truth, r.Transform);
     }
 
+    [Theory]
+    [InlineData(2, true)]
+    [InlineData(12, false)]
+    public void Refine_CandidatesBarelyAboveConsensus_SkipsTheSearch(int near, bool skipped)
+    {
+        // 300 inliers of the initial model, `near` matches 4 px off it (candidates, not inliers) and gross
+        // outliers: the search could gain at most `near` plus the gross matches that land near the model.
+        var rng = new TestRandom(7);
+        var truth = HardConsensusProblems.TrueModel(MotionModel.Homography, rng);
+        var matches = Clean(rng, truth, inliers: 300, gross: 100, noise: 0.3).ToList();
+        for (int i = 0; i < near; i++)
+        {
+            double x = rng.NextDouble() * 640, y = rng.NextDouble() * 480;
+            var (u, v) = truth.Apply(x, y);
+            matches.Add(new(x, y, u + 4, v));
+        }
+        int before = PlainRansac.Count(matches.ToArray(), truth, Threshold);
+        int candidates = matches.Count(m => TransferError.ForwardSquared(truth, m) <= 25 * Threshold * Threshold);
+        Assert.Equal(skipped, candidates - before <= 0.01 * before);
+
+        var r = ConsensusRefiner.Refine(matches.ToArray(), truth, MotionModel.Homography, Threshold, new ConsensusRefinerOptions());
+        var searched = ConsensusRefiner.Refine(matches.ToArray(), truth, MotionModel.Homography, Threshold, new ConsensusRefinerOptions { SkipGainShare = 0 });
+
+        Assert.True(searched.LinearPrograms > 0);
+        Assert.True(searched.ConsensusAfter >= before);
+        if (skipped)
+        {
+            Assert.Equal((before, before, 0), (r.ConsensusBefore, r.ConsensusAfter, r.LinearPrograms));
+            Assert.Equal(truth, r.Transform);
+            Assert.Contains("skipped", r.Termination, StringComparison.Ordinal);
+            // What the search would have gained is within the bound.
+            Assert.True(searched.ConsensusAfter - before <= candidates - before);
+        }
+        else
+        {
+            Assert.Equal((searched.Transform, searched.LinearPrograms), (r.Transform, r.LinearPrograms));
+        }
+    }
+
     [Fact]
     public void Refine_PolygonWithFewerThanEightSides_Throws()
     {
