@@ -38,9 +38,25 @@ public static class PreviewRenderer
         int height = Math.Clamp((int)Math.Ceiling(canvas.Height * scale) + 1, 1, options.MaxLongSide);
         var sum = new float[width * height * 3];
         var weight = new float[width * height];
-        foreach (var image in images.OrderBy(i => i.Index))
+        // Images are opened (decoded, resized) a batch at a time in parallel and blended strictly in
+        // index order, so the float sums are those of one image after another.
+        var ordered = images.OrderBy(i => i.Index).ToArray();
+        var areas = ordered.Select(i => AreaOf(i, canvas, scale, width, height)).ToArray();
+        int batch = 2 * Environment.ProcessorCount;
+        var opened = new Image<Rgb24>?[batch];
+        for (int start = 0; start < ordered.Length; start += batch)
         {
-            Accumulate(image, canvas, scale, width, height, open, sum, weight);
+            int count = Math.Min(batch, ordered.Length - start);
+            OpenBatch(ordered, areas, start, count, open, opened);
+            for (int k = 0; k < count; k++)
+            {
+                using var source = opened[k];
+                opened[k] = null;
+                if (source is not null && areas[start + k] is { } area)
+                {
+                    Blend(ordered[start + k], area, source, canvas, scale, width, sum, weight);
+                }
+            }
         }
         var result = new Image<Rgb24>(width, height);
         result.ProcessPixelRows(rows =>
@@ -79,12 +95,14 @@ public static class PreviewRenderer
 
     private static byte ToByte(float v) => (byte)Math.Clamp((int)MathF.Round(v), 0, 255);
 
-    private static void Accumulate(PreviewImage image, CanvasBounds canvas, double scale, int width, int height,
-        PreviewImageOpener open, float[] sum, float[] weight)
+    /// <summary>Where an image lands on the preview (pixel box), its inverse transform and the long side to open it at; null when it lands nowhere.</summary>
+    private readonly record struct PreviewArea(int X0, int X1, int Y0, int Y1, Transform2D FromReference, int OpenSide);
+
+    private static PreviewArea? AreaOf(PreviewImage image, CanvasBounds canvas, double scale, int width, int height)
     {
         if (!image.ToReference.TryInvert(out var fromReference))
         {
-            return;
+            return null;
         }
         var corners = Transform2D.Corners(image.FullSize.Width, image.FullSize.Height);
         double minX = double.PositiveInfinity, minY = double.PositiveInfinity, maxX = double.NegativeInfinity, maxY = double.NegativeInfinity;
@@ -96,21 +114,48 @@ public static class PreviewRenderer
         }
         if (!double.IsFinite(minX + minY + maxX + maxY))
         {
-            return;
+            return null;
         }
         int x0 = Math.Max(0, (int)Math.Floor(minX)), x1 = Math.Min(width - 1, (int)Math.Ceiling(maxX));
         int y0 = Math.Max(0, (int)Math.Floor(minY)), y1 = Math.Min(height - 1, (int)Math.Ceiling(maxY));
         if (x0 > x1 || y0 > y1)
         {
-            return;
+            return null;
         }
         int fullLong = Math.Max(image.FullSize.Width, image.FullSize.Height);
         int footprint = (int)Math.Ceiling(Math.Max(maxX - minX, maxY - minY) * 1.5);
-        using var source = open(image.Index, Math.Clamp(footprint, 16, fullLong));
-        if (source is null)
+        return new PreviewArea(x0, x1, y0, y1, fromReference, Math.Clamp(footprint, 16, fullLong));
+    }
+
+    /// <summary>Opens images start .. start + count - 1 of those that land somewhere, in parallel; a failure of one is rethrown as itself.</summary>
+    private static void OpenBatch(PreviewImage[] ordered, PreviewArea?[] areas, int start, int count, PreviewImageOpener open, Image<Rgb24>?[] opened)
+    {
+        try
         {
-            return;
+            Parallel.For(0, count, k =>
+            {
+                if (areas[start + k] is { } area)
+                {
+                    opened[k] = open(ordered[start + k].Index, area.OpenSide);
+                }
+            });
         }
+        catch (AggregateException e)
+        {
+            for (int k = 0; k < count; k++)
+            {
+                opened[k]?.Dispose();
+                opened[k] = null;
+            }
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerExceptions[0]).Throw();
+            throw;
+        }
+    }
+
+    private static void Blend(PreviewImage image, PreviewArea area, Image<Rgb24> source, CanvasBounds canvas, double scale, int width,
+        float[] sum, float[] weight)
+    {
+        var (x0, x1, y0, y1, fromReference, _) = area;
         double sx = (double)source.Width / image.FullSize.Width, sy = (double)source.Height / image.FullSize.Height;
         int sw = source.Width, sh = source.Height;
         var pixels = new Rgb24[sw * sh];
