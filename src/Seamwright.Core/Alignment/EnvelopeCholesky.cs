@@ -68,11 +68,7 @@ internal sealed class EnvelopeCholesky
                 var rj = _rows[j];
                 int fj = _first[j];
                 int from = Math.Max(fi, fj);
-                double sum = ri[j - fi];
-                for (int m = from; m < j; m++)
-                {
-                    sum -= ri[m - fi] * rj[m - fj];
-                }
+                double sum = ri[j - fi] - Dot(ri.AsSpan(from - fi, j - from), rj.AsSpan(from - fj, j - from));
                 if (j < i)
                 {
                     ri[j - fi] = sum / rj[^1];
@@ -88,6 +84,31 @@ internal sealed class EnvelopeCholesky
             }
         }
         return true;
+    }
+
+    /// <summary>
+    /// Dot product in four interleaved partial sums, ((s0 + s1) + (s2 + s3)) then the tail: four
+    /// independent chains instead of one, the same bits on every machine (no vector width or
+    /// fused multiply-add involved).
+    /// </summary>
+    internal static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
+    {
+        double s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+        int n = a.Length, k = 0;
+        b = b[..n];
+        for (; k + 4 <= n; k += 4)
+        {
+            s0 += a[k] * b[k];
+            s1 += a[k + 1] * b[k + 1];
+            s2 += a[k + 2] * b[k + 2];
+            s3 += a[k + 3] * b[k + 3];
+        }
+        double s = (s0 + s1) + (s2 + s3);
+        for (; k < n; k++)
+        {
+            s += a[k] * b[k];
+        }
+        return s;
     }
 
     /// <summary>Solves L L^T x = b after <see cref="Factorize"/>; b is overwritten by x.</summary>

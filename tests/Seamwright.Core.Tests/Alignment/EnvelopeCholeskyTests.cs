@@ -56,4 +56,33 @@ public sealed class EnvelopeCholeskyTests
         m.Add(1, 1, 1);
         Assert.False(m.Factorize());
     }
+
+    [Theory]
+    [InlineData(0)]
+    [InlineData(1)]
+    [InlineData(3)]
+    [InlineData(4)]
+    [InlineData(7)]
+    [InlineData(9)]
+    [InlineData(204)]
+    public void Dot_EveryLength_EqualsTheFourPartialSumsAndTheTail(int n)
+    {
+        var rng = new Random(n + 1);
+        var a = Enumerable.Range(0, n).Select(_ => rng.NextDouble() - 0.5).ToArray();
+        var b = Enumerable.Range(0, n + 2).Select(_ => rng.NextDouble() - 0.5).ToArray();
+        // The definition, written out: lane k % 4 for the whole groups of four, then the tail in order.
+        var lanes = new double[4];
+        int whole = n / 4 * 4;
+        for (int k = 0; k < whole; k++)
+        {
+            lanes[k % 4] += a[k] * b[k];
+        }
+        double expected = (lanes[0] + lanes[1]) + (lanes[2] + lanes[3]);
+        for (int k = whole; k < n; k++)
+        {
+            expected += a[k] * b[k];
+        }
+        Assert.Equal(expected, EnvelopeCholesky.Dot(a, b));
+        Assert.Equal(a.Zip(b).Sum(p => p.First * p.Second), EnvelopeCholesky.Dot(a, b), 1e-12);
+    }
 }
