@@ -70,18 +70,22 @@ public static class SetVisuals
             }
         }
         var names = images.Select(i => i.Name).ToList();
+        var offPlane = setModel?.OffPlane;
         var reportImages = images.Select((image, i) => new ReportImage(
             image.Name, image.Size.Width, image.Size.Height, thumbnails[i], alignment.Images[i].ToReference?.ToRowMajor(),
-            alignment.Reference == i, alignment.Images[i].Reason ?? ComponentNote(alignment, i, names))).ToList();
+            alignment.Reference == i, alignment.Images[i].Reason ?? ComponentNote(alignment, i, names))
+            {
+                PlacedByCamera = offPlane?[i] is not null,
+            }).ToList();
         var reportPairs = pairs.Select(p => new ReportPair(
             images[p.A].Name, images[p.B].Name, p.Estimate.Status.Word(), p.Estimate.InlierIndices.Length, p.Estimate.MatchCount,
             p.Estimate.RmsResidualPx, p.Estimate.CornerSigmaPx, p.Estimate.Reasons, AlignmentSummary.PairNote(alignment, p.A, p.B),
             p.Estimate.FeaturePath.Word())).ToList();
         var report = new SetReport(setName, runId, fingerprint, MotionFamily.Of(alignment.Model).Name, reportImages, reportPairs, preview,
-            [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names)],
+            [.. SetModelSummary.Facts(setModel), .. AlignmentSummary.Facts(alignment, names, offPlane)],
             SetModelSummary.Warnings(AlignmentSummary.Warnings(alignment, names), setModel, names))
         {
-            Verdict = ReportVerdict.Judge(alignment, reportPairs, names, provenance?.LeftOut.Count ?? 0),
+            Verdict = ReportVerdict.Judge(alignment, reportPairs, names, provenance?.LeftOut.Count ?? 0, offPlane),
             Provenance = provenance,
             PairModel = pairModel is { } m ? MotionFamily.Of(m).Name : null,
         };

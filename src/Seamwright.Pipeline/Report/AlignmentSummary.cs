@@ -6,14 +6,15 @@ namespace Seamwright.Pipeline.Report;
 /// <summary>Turns a set alignment into report facts, warnings and per-pair notes.</summary>
 public static class AlignmentSummary
 {
-    public static IReadOnlyList<ReportFact> Facts(SetAlignment alignment, IReadOnlyList<string> names)
+    /// <param name="offPlane">Per image, why its camera block places it without a plane transform (null otherwise); null for planar sets.</param>
+    public static IReadOnlyList<ReportFact> Facts(SetAlignment alignment, IReadOnlyList<string> names, IReadOnlyList<string?>? offPlane = null)
     {
         ArgumentNullException.ThrowIfNull(alignment);
         ArgumentNullException.ThrowIfNull(names);
         var facts = new List<ReportFact>
         {
             new("Reference image", alignment.Reference is int r ? names[r] : "none"),
-            new("Placed images", $"{alignment.PlacedCount} of {alignment.Images.Length}"),
+            new("Placed images", PlacedText(alignment, offPlane)),
             new("Components", alignment.Components.Length.ToString(CultureInfo.InvariantCulture)),
         };
         if (alignment.Canvas is CanvasBounds c)
@@ -65,6 +66,14 @@ public static class AlignmentSummary
         ArgumentNullException.ThrowIfNull(alignment);
         var d = alignment.Demoted.FirstOrDefault(d => (d.ImageA == imageA && d.ImageB == imageB) || (d.ImageA == imageB && d.ImageB == imageA));
         return d is null ? null : $"left out of the alignment ({d.Stage}): {d.Reason}";
+    }
+
+    private static string PlacedText(SetAlignment alignment, IReadOnlyList<string?>? offPlane)
+    {
+        int byCamera = ReportVerdict.ByCameraOnly(alignment, offPlane);
+        return byCamera == 0
+            ? F($"{alignment.PlacedCount} of {alignment.Images.Length}")
+            : F($"{alignment.PlacedCount + byCamera} of {alignment.Images.Length} ({alignment.PlacedCount} on the reference plane, {byCamera} by their camera only)");
     }
 
     private static string F(FormattableString s) => s.ToString(CultureInfo.InvariantCulture);

@@ -17,7 +17,7 @@ internal static class ReportProblems
     public static void Render(StringBuilder sb, SetReport report)
     {
         var items = new List<string>();
-        foreach (var image in report.Images.Where(i => i.ToReference is null))
+        foreach (var image in report.Images.Where(i => i.ToReference is null && !i.PlacedByCamera))
         {
             items.Add("Image " + E(image.Name) + " not placed" + (image.Note is null ? "" : ": " + E(image.Note)));
         }

@@ -29,23 +29,28 @@ public static class ReportVerdict
     /// <summary>
     /// "usable: 9 of 9 images placed, 12 of 12 expected pairs accepted", or "usable with gaps: ..."
     /// (some images unplaced or files left out) or "not usable: ..." (fewer than two images placed),
-    /// followed by what blocks it.
+    /// followed by what blocks it. An image with no transform into the reference plane that its
+    /// camera block places (<paramref name="offPlane"/> non-null: a rotation set's frame looking
+    /// away from the reference) counts as placed.
     /// </summary>
-    public static VerdictText Judge(SetAlignment alignment, IReadOnlyList<ReportPair> pairs, IReadOnlyList<string> names, int leftOut)
+    public static VerdictText Judge(SetAlignment alignment, IReadOnlyList<ReportPair> pairs, IReadOnlyList<string> names, int leftOut,
+        IReadOnlyList<string?>? offPlane = null)
     {
         ArgumentNullException.ThrowIfNull(alignment);
         ArgumentNullException.ThrowIfNull(pairs);
         ArgumentNullException.ThrowIfNull(names);
         int images = alignment.Images.Length;
-        int placed = alignment.PlacedCount;
+        int byCamera = ByCameraOnly(alignment, offPlane);
+        int placed = alignment.PlacedCount + byCamera;
         int accepted = pairs.Count(p => p.Status == "accepted");
-        string figures = F($"{placed} of {images + leftOut} images placed, {accepted} of {pairs.Count} expected pairs accepted");
+        string how = byCamera > 0 ? F($" ({byCamera} by their camera only)") : "";
+        string figures = F($"{placed} of {images + leftOut} images placed{how}, {accepted} of {pairs.Count} expected pairs accepted");
         var blockers = new List<string>();
         if (leftOut > 0)
         {
             blockers.Add(F($"{leftOut} input files unusable (listed below)"));
         }
-        int unplaced = alignment.Images.Count(p => !p.IsPlaced);
+        int unplaced = alignment.Images.Length - placed;
         if (unplaced > 0)
         {
             blockers.Add(F($"{unplaced} images not placed"));
@@ -85,7 +90,7 @@ public static class ReportVerdict
             sb.Append("</dl>");
         }
         var leftOut = report.Provenance?.LeftOut ?? [];
-        var unplaced = report.Images.Where(i => i.ToReference is null).ToList();
+        var unplaced = report.Images.Where(i => i.ToReference is null && !i.PlacedByCamera).ToList();
         if (leftOut.Count + unplaced.Count > 0)
         {
             sb.Append("<h3>Not in the result</h3><ul id=\"left-out\">");
@@ -100,6 +105,13 @@ public static class ReportVerdict
             sb.Append("</ul>");
         }
         sb.Append("</section>\n");
+    }
+
+    /// <summary>Images without a plane transform whose camera block places them.</summary>
+    public static int ByCameraOnly(SetAlignment alignment, IReadOnlyList<string?>? offPlane)
+    {
+        ArgumentNullException.ThrowIfNull(alignment);
+        return offPlane is null ? 0 : alignment.Images.Count(p => !p.IsPlaced && p.Index < offPlane.Count && offPlane[p.Index] is not null);
     }
 
     private static string E(string s) => WebUtility.HtmlEncode(s);

@@ -10,7 +10,11 @@ namespace Seamwright.Pipeline.Report;
 /// <param name="ToReference">3x3 row-major transform into the reference, or null when unplaced.</param>
 /// <param name="IsReference">True for the reference image of the main component.</param>
 /// <param name="Note">Why it is unplaced, or another remark; null when none.</param>
-public sealed record ReportImage(string Name, int Width, int Height, byte[]? ThumbnailJpeg, double[]? ToReference, bool IsReference, string? Note);
+public sealed record ReportImage(string Name, int Width, int Height, byte[]? ThumbnailJpeg, double[]? ToReference, bool IsReference, string? Note)
+{
+    /// <summary>True when the image has no transform into the reference plane but its camera block places it (a rotation set's frame looking away from the reference).</summary>
+    public bool PlacedByCamera { get; init; }
+}
 
 /// <summary>One pair row of the confidence table.</summary>
 /// <param name="ImageA">File name of the first image.</param>

@@ -75,4 +75,32 @@ public sealed class ReportVerdictTests
         var v = ReportVerdict.Judge(alignment, accepted, report.Images.Select(i => i.Name).ToList(), leftOut: 0);
         Assert.Equal($"usable: 6 of 6 images placed, {accepted.Count} of {accepted.Count} expected pairs accepted", v.Text);
     }
+
+    [Fact]
+    public void Verdict_FramesPlacedByTheirCameraOnly_CountAsPlacedAndAreNotProblems()
+    {
+        // A rotation set's frames that look away from the reference have no plane transform but a camera block.
+        var sizes = Enumerable.Range(0, 5).Select(_ => new Seamwright.Core.Geometry.ImageSize(400, 300)).ToList();
+        var alignment = SetAligner.Align(sizes, [], MotionModel.Homography);
+        var names = Enumerable.Range(0, 5).Select(i => $"f{i}.jpg").ToList();
+        var pairs = Enumerable.Range(0, 4).Select(i => new ReportPair(names[i], names[i + 1], "accepted", 100, 120, 0.3, 0.1, [], null)).ToList();
+        var unplaced = alignment.Images.Where(p => !p.IsPlaced).Select(p => p.Index).ToList();
+        Assert.True(unplaced.Count >= 2);
+        var offPlane = new string?[5];
+        foreach (int i in unplaced.Skip(1))
+        {
+            offPlane[i] = "looks away from the reference image's plane";
+        }
+
+        var v = ReportVerdict.Judge(alignment, pairs, names, leftOut: 0, offPlane);
+        var placedFact = Assert.Single(AlignmentSummary.Facts(alignment, names, offPlane), f => f.Label == "Placed images");
+
+        int byCamera = unplaced.Count - 1;
+        Assert.Equal($"usable with gaps: 4 of 5 images placed ({byCamera} by their camera only), 4 of 4 expected pairs accepted (1 images not placed)", v.Text);
+        Assert.Equal($"4 of 5 ({alignment.PlacedCount} on the reference plane, {byCamera} by their camera only)", placedFact.Value);
+        offPlane[unplaced[0]] = "looks away from the reference image's plane";
+        Assert.Equal("usable", ReportVerdict.Judge(alignment, pairs, names, leftOut: 0, offPlane).Level);
+        // Without camera blocks the same alignment is what it was: fewer than two images placed.
+        Assert.StartsWith($"not usable: {alignment.PlacedCount} of 5 images placed, ", ReportVerdict.Judge(alignment, pairs, names, leftOut: 0).Text, StringComparison.Ordinal);
+    }
 }
