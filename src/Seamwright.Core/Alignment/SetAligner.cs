@@ -212,19 +212,19 @@ public static class SetAligner
             Array.Fill(hops, -1);
             var queue = new int[_graph.ImageCount];
             int best = -1;
-            (int Degree, long Hops, double Weight) bestKey = default;
+            long bestHops = 0;
+            double bestWeight = 0;
             for (int k = 0; k < members.Length; k++)
             {
                 if (connectivity[k].Degree < maxDegree)
                 {
                     continue;
                 }
-                int i = members[k];
-                var key = (connectivity[k].Degree, HopSum(i, allowed, hops, queue), connectivity[k].Weight);
-                if (best < 0 || key.Item2 < bestKey.Hops || (key.Item2 == bestKey.Hops && key.Item3 > bestKey.Weight))
+                long hopSum = HopSum(members[k], allowed, hops, queue);
+                double weight = connectivity[k].Weight;
+                if (best < 0 || hopSum < bestHops || (hopSum == bestHops && weight > bestWeight))
                 {
-                    best = i;
-                    bestKey = key;
+                    (best, bestHops, bestWeight) = (members[k], hopSum, weight);
                 }
             }
             return best;

@@ -36,15 +36,8 @@ public readonly record struct LensDistortion(double K1, double K2)
                 return double.PositiveInfinity;
             }
             double sq = Math.Sqrt(disc);
-            double best = double.PositiveInfinity;
-            foreach (double s in new[] { (-b - sq) / (2 * a), (-b + sq) / (2 * a) })
-            {
-                if (s > 0 && s < best)
-                {
-                    best = s;
-                }
-            }
-            return best;
+            double low = Math.Min((-b - sq) / (2 * a), (-b + sq) / (2 * a)), high = Math.Max((-b - sq) / (2 * a), (-b + sq) / (2 * a));
+            return low > 0 ? low : high > 0 ? high : double.PositiveInfinity;
         }
     }
 

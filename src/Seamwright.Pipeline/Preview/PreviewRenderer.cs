@@ -148,7 +148,6 @@ public static class PreviewRenderer
                 opened[k] = null;
             }
             System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerExceptions[0]).Throw();
-            throw;
         }
     }
 
